@@ -4,7 +4,8 @@ A pure library: it imports numpy, pandas, pyarrow and scipy, never the
 database, the web layer or Celery. ``profile_file`` is its entry point.
 """
 
-from worker.profiling.engine import FORMAT_VERSION, ProfileError, ProgressCallback, profile_file
+from worker.profiling.engine import FORMAT_VERSION, ProgressCallback, profile_file
+from worker.profiling.errors import ProfileError
 from worker.profiling.options import ProfileOptions
 
 __all__ = ["FORMAT_VERSION", "ProfileError", "ProfileOptions", "ProgressCallback", "profile_file"]

@@ -11,16 +11,13 @@ from typing import Any
 import pyarrow as pa
 import pyarrow.csv as pacsv
 
+from worker.profiling.errors import ProfileError
 from worker.profiling.options import ProfileOptions
 
 FORMAT_VERSION = 1
 
 ProgressCallback = Callable[[str, float], None]
 """Called with a stage name and the share of the file's bytes read (0 to 1)."""
-
-
-class ProfileError(Exception):
-    """The file cannot be profiled; the message names the reason for a person."""
 
 
 def profile_file(
