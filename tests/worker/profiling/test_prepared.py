@@ -1,0 +1,52 @@
+"""Tests of the prepared batch: missing masks, numbers and labels (truth by construction)."""
+
+import numpy as np
+import pyarrow as pa
+
+from worker.profiling.prepared import BatchPlan, parse_numbers, prepare_batch
+
+
+def _plan(**kw):
+    base = dict(
+        numeric=frozenset({"x"}),
+        labels=frozenset({"s"}),
+        missing_tokens=("NA", "-"),
+    )
+    base.update(kw)
+    return BatchPlan(**base)
+
+
+def test_missing_mask_counts_null_blank_and_tokens():
+    # Planted faults: one null, one blank, one whitespace-only, two tokens.
+    raw = pa.record_batch(
+        {
+            "x": pa.array(["1.5", None, "", "  ", "NA", " - ", "abc"]),
+            "s": pa.array(["a ", "b", None, "a", "NA", "c", " a"]),
+        }
+    )
+    prepared = prepare_batch(raw, 10, _plan())
+    assert prepared.offset == 10
+    assert prepared.missing["x"].tolist() == [False, True, True, True, True, True, False]
+    detail = prepared.missing_counts["x"]
+    assert (detail.null, detail.blank, detail.tokens) == (1, 2, {"NA": 1, "-": 1})
+    numbers = prepared.numbers["x"]
+    assert numbers[0] == 1.5
+    assert np.isnan(numbers[1:]).all()
+    assert prepared.labels["s"].to_pylist() == ["a", "b", None, "a", None, "c", "a"]
+
+
+def test_decimal_comma_and_thousands():
+    # Truth by construction: "1.234,5" with "." thousands and "," decimal is 1234.5.
+    values = parse_numbers(pa.array(["1.234,5", "7,25", "x"]), decimal=",", thousands=".")
+    assert values[:2].tolist() == [1234.5, 7.25]
+    assert np.isnan(values[2])
+
+
+def test_typed_columns_skip_text_parsing():
+    raw = pa.record_batch(
+        {"x": pa.array([1.0, None, float("nan"), 4.0]), "s": pa.array([1, 2, 3, 4])}
+    )
+    prepared = prepare_batch(raw, 0, _plan())
+    assert prepared.missing["x"].tolist() == [False, True, True, False]
+    assert prepared.numbers["x"][[0, 3]].tolist() == [1.0, 4.0]
+    assert prepared.labels["s"].to_pylist() == ["1", "2", "3", "4"]
