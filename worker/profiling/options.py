@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from pydantic import BaseModel, Field
 
+from worker.profiling.judgement.thresholds import FlagThresholds
+
 DEFAULT_MISSING_TOKENS: tuple[str, ...] = (
     "NA",
     "N/A",
@@ -43,4 +45,8 @@ class ProfileOptions(BaseModel):
     missing_tokens: tuple[str, ...] = Field(
         DEFAULT_MISSING_TOKENS,
         description="Cell texts counted as missing, after trimming whitespace (common practice).",
+    )
+    thresholds: FlagThresholds = Field(
+        default_factory=FlagThresholds,
+        description="Thresholds of the flags, scorecard and drift checks; each names its source.",
     )
