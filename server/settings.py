@@ -38,9 +38,34 @@ class Settings(BaseSettings):
         2 * 1024**3, description="Largest accepted upload; larger ones get 413 while streaming."
     )
     sweeper_timeout_seconds: int = Field(
-        900, description="An intake queued or profiling longer than this is enqueued again."
+        900,
+        description="An intake queued, or profiling with no heartbeat, for longer than this "
+        "is enqueued again.",
     )
     sweeper_interval_seconds: int = Field(60, description="How often the sweeper looks.")
+    sweeper_enabled: bool = Field(
+        True, description="Run the sweeper as a thread inside `tidewaiter serve`."
+    )
+    job_heartbeat_seconds: float = Field(
+        30.0,
+        description="A running job touches its intake at least this often, so the sweeper "
+        "can tell a slow job from a dead one (keep it well below the sweeper timeout).",
+    )
+    job_progress_interval_seconds: float = Field(
+        0.5, description="Shortest time between two progress writes of a running job."
+    )
+    job_max_retries: int = Field(
+        5, description="Retries of a job after a transient error (database or queue down)."
+    )
+    job_retry_backoff_max_seconds: int = Field(
+        600, description="Longest wait between two retries (exponential backoff up to this)."
+    )
+    job_visibility_timeout_seconds: int = Field(
+        6 * 3600,
+        description="Redis visibility timeout: a message not acknowledged within this is "
+        "delivered again; it must exceed the longest job.",
+    )
+    worker_concurrency: int = Field(2, description="Processes of one `tidewaiter worker`.")
     host: str = Field("127.0.0.1", description="Address `tidewaiter serve` listens on.")
     port: int = Field(8000, description="Port `tidewaiter serve` listens on.")
     profiling: ProfileOptions = Field(default_factory=ProfileOptions)
