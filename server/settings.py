@@ -12,10 +12,40 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Literal
 
-from pydantic import Field
+from pydantic import BaseModel, Field
 from pydantic_settings import BaseSettings, SettingsConfigDict
 
 from worker.profiling.options import ProfileOptions
+
+
+class SecuritySettings(BaseModel):
+    """Sign-in, sessions, throttling and retention (``TIDEWAITER_SECURITY__<FIELD>``)."""
+
+    https: bool = Field(
+        False, description="The site is served over HTTPS: session cookies get the Secure flag."
+    )
+    session_hours: float = Field(
+        12.0, description="A session ends this long after sign-in (common practice: a work day)."
+    )
+    max_failed_sign_ins: int = Field(
+        5,
+        description="Failed sign-ins per account within the window before it is held "
+        "(common practice; OWASP Authentication Cheat Sheet).",
+    )
+    max_failed_sign_ins_per_address: int = Field(
+        20, description="Failed sign-ins per client address within the window (common practice)."
+    )
+    failed_sign_in_window_minutes: int = Field(
+        15, description="Window over which failed sign-ins are counted (common practice)."
+    )
+    retention_days: int | None = Field(
+        None,
+        description="Stored files older than this are purged (profiles are kept); "
+        "empty keeps files until an admin deletes them.",
+    )
+    demo_accounts: bool = Field(
+        False, description="Create one demo user per role with a printed password (demo only)."
+    )
 
 
 class Settings(BaseSettings):
@@ -69,6 +99,7 @@ class Settings(BaseSettings):
     host: str = Field("127.0.0.1", description="Address `tidewaiter serve` listens on.")
     port: int = Field(8000, description="Port `tidewaiter serve` listens on.")
     profiling: ProfileOptions = Field(default_factory=ProfileOptions)
+    security: SecuritySettings = Field(default_factory=SecuritySettings)
 
     @property
     def resolved_database_url(self) -> str:
