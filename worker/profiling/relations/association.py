@@ -1,0 +1,235 @@
+"""Cramér's V for label pairs and the correlation ratio eta for numeric–label pairs.
+
+Both come from exact, mergeable counts. Each batch dictionary-encodes every
+label column (Arrow), maps the batch's dictionary to a growing global label
+index, and counts pairs of codes with one ``np.bincount`` per pair. A column
+that shows more labels than ``label_bound`` is dropped from counting: V and eta
+over hundreds of labels mean little and cost much.
+
+References: Cramér (1946), "Mathematical Methods of Statistics", §21.9;
+Pearson (1903) and Fisher (1925) for the correlation ratio eta; scipy's
+``scipy.stats.contingency.association`` (method "cramer") is the reference
+implementation V is checked against.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+
+
+class LabelIndex:
+    """Global codes for the labels of one column, in order of first appearance."""
+
+    def __init__(self) -> None:
+        self.labels: list[str] = []
+        self._codes: dict[str, int] = {}
+
+    def __len__(self) -> int:
+        return len(self.labels)
+
+    def code(self, label: str) -> int:
+        found = self._codes.get(label)
+        if found is None:
+            found = self._codes[label] = len(self.labels)
+            self.labels.append(label)
+        return found
+
+    def encode(self, array: pa.Array, bound: int) -> np.ndarray | None:
+        """Global codes per row (-1 where null), or None once the column passes ``bound``."""
+        encoded = pc.dictionary_encode(array)
+        if isinstance(encoded, pa.ChunkedArray):
+            encoded = encoded.combine_chunks()
+        dictionary = encoded.dictionary.to_pylist()
+        if len(dictionary) > bound:
+            return None
+        mapping = np.array([self.code(label) for label in dictionary] + [-1], dtype=np.int64)
+        if len(self.labels) > bound:
+            return None
+        indices = encoded.indices.fill_null(len(dictionary)).to_numpy(zero_copy_only=False)
+        return mapping[indices]
+
+
+def _grow(matrix: np.ndarray, rows: int, cols: int) -> np.ndarray:
+    if matrix.shape == (rows, cols):
+        return matrix
+    grown = np.zeros((rows, cols), dtype=matrix.dtype)
+    grown[: matrix.shape[0], : matrix.shape[1]] = matrix
+    return grown
+
+
+class LabelCodes:
+    """The global label index of every label column, and which columns passed the bound."""
+
+    def __init__(self, columns: list[str], bound: int) -> None:
+        self.columns = list(columns)
+        self.bound = bound
+        self.index = {name: LabelIndex() for name in self.columns}
+        self.dropped: set[str] = set()
+
+    def encode(self, labels: Mapping[str, pa.Array]) -> dict[str, np.ndarray]:
+        """Codes per row of each column still counted in this batch (-1 where missing)."""
+        codes = {}
+        for name in self.columns:
+            if name in self.dropped:
+                continue
+            encoded = self.index[name].encode(labels[name], self.bound)
+            if encoded is None:
+                self.dropped.add(name)
+            else:
+                codes[name] = encoded
+        return codes
+
+    def remap(self, other: LabelCodes) -> dict[str, np.ndarray]:
+        """For each column, other's codes mapped to this index (adding labels it lacks)."""
+        self.dropped |= other.dropped
+        out = {}
+        for name in self.columns:
+            mapping = [self.index[name].code(label) for label in other.index[name].labels]
+            out[name] = np.array(mapping, dtype=np.int64)
+            if len(self.index[name]) > self.bound:
+                self.dropped.add(name)
+        return out
+
+
+class PairCounts:
+    """Exact contingency counts of every pair of label columns (pairwise-complete rows)."""
+
+    def __init__(self, columns: list[str]) -> None:
+        self.columns = list(columns)
+        self.counts: dict[tuple[str, str], np.ndarray] = {}
+
+    def update(self, codes: Mapping[str, np.ndarray], sizes: Mapping[str, int]) -> None:
+        names = [name for name in self.columns if name in codes]
+        for i, a in enumerate(names):
+            for b in names[i + 1 :]:
+                ca, cb = codes[a], codes[b]
+                both = (ca >= 0) & (cb >= 0)
+                la, lb = sizes[a], sizes[b]
+                table = np.bincount(ca[both] * lb + cb[both], minlength=la * lb)
+                table = table.reshape(la, lb)
+                previous = self.counts.get((a, b), np.zeros((0, 0), dtype=np.int64))
+                self.counts[(a, b)] = _grow(previous, la, lb) + table
+
+    def merge(self, other: PairCounts, remap: Mapping[str, np.ndarray], sizes) -> PairCounts:
+        merged = PairCounts(self.columns)
+        for key in set(self.counts) | set(other.counts):
+            a, b = key
+            table = _grow(self.counts.get(key, np.zeros((0, 0), np.int64)), sizes[a], sizes[b])
+            if key in other.counts:
+                theirs = other.counts[key]
+                ia = remap[a][: theirs.shape[0]]
+                ib = remap[b][: theirs.shape[1]]
+                np.add.at(table, (ia[:, None], ib[None, :]), theirs)
+            merged.counts[key] = table
+        return merged
+
+    def drop(self, dropped: set[str]) -> None:
+        for key in list(self.counts):
+            if key[0] in dropped or key[1] in dropped:
+                del self.counts[key]
+
+
+class GroupMoments:
+    """Per label, the n, mean and squared deviations of each numeric column (for eta).
+
+    Kept as mean and M2 rather than raw sums of squares, merged with Chan's
+    update, so large offsets do not cancel.
+    """
+
+    def __init__(self) -> None:
+        self.stats: dict[tuple[str, str], tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+
+    def update(
+        self,
+        numbers: Mapping[str, np.ndarray],
+        codes: Mapping[str, np.ndarray],
+        sizes: Mapping[str, int],
+    ) -> None:
+        for label_name, code in codes.items():
+            size = sizes[label_name]
+            for num_name, values in numbers.items():
+                keep = (code >= 0) & ~np.isnan(values)
+                g, x = code[keep], values[keep]
+                n = np.bincount(g, minlength=size).astype(np.float64)
+                with np.errstate(invalid="ignore", divide="ignore"):
+                    mean = np.where(n > 0, np.bincount(g, x, minlength=size) / n, 0.0)
+                m2 = np.bincount(g, (x - mean[g]) ** 2, minlength=size)
+                self._absorb((num_name, label_name), (n, mean, m2), size)
+
+    def _absorb(self, key, batch, size: int, remap: np.ndarray | None = None) -> None:
+        n_b, mean_b, m2_b = batch
+        if remap is not None:
+            n_b, mean_b, m2_b = (_scatter(v, remap, size) for v in (n_b, mean_b, m2_b))
+        old = self.stats.get(key)
+        if old is None:
+            n_a = mean_a = m2_a = np.zeros(size)
+        else:
+            n_a, mean_a, m2_a = (_pad(v, size) for v in old)
+        n_b, mean_b, m2_b = (_pad(v, size) for v in (n_b, mean_b, m2_b))
+        n = n_a + n_b
+        delta = mean_b - mean_a
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mean = np.where(n > 0, mean_a + delta * np.where(n > 0, n_b / n, 0.0), 0.0)
+            m2 = m2_a + m2_b + np.where(n > 0, delta * delta * n_a * n_b / n, 0.0)
+        self.stats[key] = (n, mean, m2)
+
+    def merge(self, other: GroupMoments, remap: Mapping[str, np.ndarray], sizes) -> GroupMoments:
+        merged = GroupMoments()
+        merged.stats = dict(self.stats)
+        for key, value in other.stats.items():
+            label_name = key[1]
+            merged._absorb(key, value, sizes[label_name], remap[label_name])
+        return merged
+
+    def drop(self, dropped: set[str]) -> None:
+        for key in list(self.stats):
+            if key[1] in dropped:
+                del self.stats[key]
+
+
+def _pad(values: np.ndarray, size: int) -> np.ndarray:
+    if len(values) >= size:
+        return values
+    return np.concatenate([values, np.zeros(size - len(values))])
+
+
+def _scatter(values: np.ndarray, remap: np.ndarray, size: int) -> np.ndarray:
+    out = np.zeros(size)
+    out[remap[: len(values)]] = values
+    return out
+
+
+def eta(n: np.ndarray, mean: np.ndarray, m2: np.ndarray) -> tuple[float | None, int]:
+    """Correlation ratio from per-group n, mean and M2: sqrt(between SS / total SS), and n.
+
+    References: Fisher (1925), "Statistical Methods for Research Workers", §45.
+    """
+    total_n = float(n.sum())
+    if total_n < 2 or np.count_nonzero(n) < 2:
+        return None, int(total_n)
+    grand = float((n * mean).sum() / total_n)
+    between = float((n * (mean - grand) ** 2).sum())
+    total = between + float(m2.sum())
+    if total <= 0:
+        return None, int(total_n)
+    return float(np.sqrt(min(between / total, 1.0))), int(total_n)
+
+
+def cramers_v(table: np.ndarray) -> float | None:
+    """Cramér's V of a contingency table, as scipy.stats.contingency.association gives.
+
+    Labels never seen with the other column (empty rows or columns) are left
+    out first; V is undefined (None) when fewer than two rows or columns remain.
+    """
+    table = np.asarray(table, dtype=np.float64)
+    table = table[table.sum(axis=1) > 0][:, table.sum(axis=0) > 0]
+    if min(table.shape) < 2:
+        return None
+    n = table.sum()
+    expected = np.outer(table.sum(axis=1), table.sum(axis=0)) / n
+    chi2 = float(((table - expected) ** 2 / expected).sum())
+    return float(np.sqrt(chi2 / (n * (min(table.shape) - 1))))

@@ -1,0 +1,95 @@
+"""The statistics of one crosstab (a contingency table of two label columns).
+
+One implementation for the profile's ``crosstabs[]`` and for the on-demand
+crosstab over the columnar copy (``worker.profiling.queries``):
+
+- counts and row shares;
+- Pearson's chi-square test of independence, as ``scipy.stats.chi2_contingency``
+  gives it with its default (Yates' continuity correction only for a 2×2 table,
+  none for larger tables);
+- adjusted standardised residuals (O − E) / sqrt(E (1 − r_i/n)(1 − c_j/n)),
+  roughly standard normal under independence, so |residual| > 2 marks a
+  combination that is over- (positive) or under-represented (negative);
+- whether the expected counts meet Cochran's rule: at least 5 in 80 % of the
+  cells and none below 1, without which the chi-square p-value is unreliable.
+
+References: Agresti (2013), "Categorical Data Analysis", 3rd ed., §2.4.5
+(adjusted residuals); Cochran (1954), "Some methods for strengthening the
+common χ² tests", Biometrics 10(4); Yates (1934).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from typing import Any
+
+import numpy as np
+from scipy.stats import chi2_contingency
+
+
+def adjusted_residuals(table: np.ndarray) -> np.ndarray:
+    """Adjusted standardised residuals of every cell (Agresti 2013, §2.4.5)."""
+    table = np.asarray(table, dtype=np.float64)
+    n = table.sum()
+    row_share = table.sum(axis=1) / n
+    col_share = table.sum(axis=0) / n
+    expected = np.outer(row_share, col_share) * n
+    variance = expected * np.outer(1.0 - row_share, 1.0 - col_share)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        residuals = (table - expected) / np.sqrt(variance)
+    return np.where(variance > 0, residuals, 0.0)
+
+
+def cochran_ok(expected: np.ndarray) -> bool:
+    """Cochran (1954): at least 80 % of expected counts ≥ 5 and none below 1."""
+    expected = np.asarray(expected, dtype=np.float64)
+    return bool(expected.min() >= 1.0 and (expected >= 5.0).mean() >= 0.8)
+
+
+def crosstab_statistics(
+    a: str,
+    b: str,
+    a_labels: Sequence[str],
+    b_labels: Sequence[str],
+    table: np.ndarray,
+) -> dict[str, Any] | None:
+    """The crosstab document of a pair, or None when the table is not at least 2×2.
+
+    Labels are put in text order, so the same pair reads the same in every
+    intake. Labels of a (rows) and of b (columns) that never occur together with a
+    label of the other column are left out first, since their expected counts
+    are zero and the test is undefined for them.
+    """
+    table = np.asarray(table, dtype=np.int64)
+    row_order = np.argsort(np.asarray(a_labels, dtype=object), kind="stable")
+    col_order = np.argsort(np.asarray(b_labels, dtype=object), kind="stable")
+    table = table[row_order][:, col_order]
+    a_labels = [a_labels[i] for i in row_order]
+    b_labels = [b_labels[i] for i in col_order]
+    keep_rows = table.sum(axis=1) > 0
+    keep_cols = table.sum(axis=0) > 0
+    table = table[keep_rows][:, keep_cols]
+    a_labels = [label for label, keep in zip(a_labels, keep_rows, strict=True) if keep]
+    b_labels = [label for label, keep in zip(b_labels, keep_cols, strict=True) if keep]
+    if min(table.shape) < 2:
+        return None
+    result = chi2_contingency(table)
+    n = int(table.sum())
+    row_totals = table.sum(axis=1, keepdims=True)
+    min_side = min(table.shape) - 1
+    uncorrected = chi2_contingency(table, correction=False).statistic
+    return {
+        "a": a,
+        "b": b,
+        "n": n,
+        "counts": {"a_labels": a_labels, "b_labels": b_labels, "matrix": table.tolist()},
+        "row_shares": (table / row_totals).round(6).tolist(),
+        "chi2": float(result.statistic),
+        "dof": int(result.dof),
+        "p_value": float(result.pvalue),
+        "yates_correction": bool(result.dof == 1),
+        "cramers_v": float(np.sqrt(uncorrected / (n * min_side))),
+        "residuals": adjusted_residuals(table).round(4).tolist(),
+        "expected": np.asarray(result.expected_freq).round(4).tolist(),
+        "cochran_ok": cochran_ok(result.expected_freq),
+    }

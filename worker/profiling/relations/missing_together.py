@@ -1,0 +1,77 @@
+"""Which columns tend to be missing in the same rows.
+
+Per batch one matrix product of the missing masks gives, for every pair of
+columns, how many rows miss both; with the per-column missing counts and the
+row count that is the whole 2×2 table of the two masks, so the state is a
+p×p integer matrix and merging is addition. The strength of the tendency is
+the phi coefficient of the two masks (Pearson r of two 0/1 variables) and
+their Jaccard index (rows missing both over rows missing either).
+
+References: Yule (1912), "On the methods of measuring association between two
+attributes" (phi); Jaccard (1912), "The distribution of the flora in the
+alpine zone".
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from typing import Any
+
+import numpy as np
+
+
+class MissingTogether:
+    """Counts of rows missing both columns, for every pair of ``columns``."""
+
+    def __init__(self, columns: list[str]) -> None:
+        self.columns = list(columns)
+        self.rows = 0
+        self.both = np.zeros((len(self.columns),) * 2, dtype=np.int64)
+
+    def update(self, missing: Mapping[str, np.ndarray]) -> None:
+        if not self.columns:
+            return
+        masks = np.column_stack([np.asarray(missing[name]) for name in self.columns])
+        self.rows += masks.shape[0]
+        if masks.any():
+            m = masks.astype(np.float32)  # exact: a batch has far fewer than 2**24 rows
+            self.both += np.rint(m.T @ m).astype(np.int64)
+
+    def merge(self, other: MissingTogether) -> MissingTogether:
+        if other.columns != self.columns:
+            raise ValueError("missing-together states over different columns cannot be merged")
+        merged = MissingTogether(self.columns)
+        merged.rows = self.rows + other.rows
+        merged.both = self.both + other.both
+        return merged
+
+    def finalize(self, min_phi: float) -> list[dict[str, Any]]:
+        """Pairs missing together at least once with phi ≥ ``min_phi``, strongest first."""
+        out = []
+        n = self.rows
+        miss = np.diag(self.both)
+        for i, a in enumerate(self.columns):
+            for j in range(i + 1, len(self.columns)):
+                both = int(self.both[i, j])
+                if both == 0:
+                    continue
+                ma, mb = int(miss[i]), int(miss[j])
+                denominator = float(ma) * (n - ma) * mb * (n - mb)
+                if denominator <= 0:
+                    continue  # a column missing everywhere (or nowhere) says nothing here
+                phi = (both * n - ma * mb) / np.sqrt(denominator)
+                if phi < min_phi:
+                    continue
+                out.append(
+                    {
+                        "a": a,
+                        "b": self.columns[j],
+                        "both": both,
+                        "a_missing": ma,
+                        "b_missing": mb,
+                        "phi": float(phi),
+                        "jaccard": both / (ma + mb - both),
+                    }
+                )
+        out.sort(key=lambda item: (-item["phi"], item["a"], item["b"]))
+        return out

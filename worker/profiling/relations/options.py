@@ -1,0 +1,73 @@
+"""Options of the across-column statistics, embedded in ``ProfileOptions`` as ``relations``.
+
+Each field is the environment variable ``TIDEWAITER_PROFILING__RELATIONS__<FIELD>``.
+Each default names its source or says "common practice".
+"""
+
+from __future__ import annotations
+
+from pydantic import BaseModel, Field
+
+
+class RelationsOptions(BaseModel):
+    """Bounds and thresholds of pairs, twins, crosstabs, missing-together and duplicate rows."""
+
+    rank_sample_rows: int = Field(
+        1_000_000,
+        ge=10,
+        description="Rows kept in the uniform row sample that Spearman is computed on; "
+        "Spearman is exact when the table has at most this many rows (common practice, "
+        "the same bound as the exact per-column statistics).",
+    )
+    label_bound: int = Field(
+        200,
+        ge=2,
+        description="A label column with more distinct labels than this is left out of "
+        "Cramér's V and eta, which would be meaningless and costly (common practice).",
+    )
+    twin_r: float = Field(
+        0.999,
+        gt=0,
+        le=1,
+        description="|Pearson r| at or above which two numeric columns are reported as twins, "
+        "the same measure twice (common practice).",
+    )
+    unit_tolerance: float = Field(
+        0.005,
+        gt=0,
+        description="Relative tolerance on slope and intercept when matching a twin pair "
+        "against a known unit conversion (common practice: rounding of the delivered values).",
+    )
+    crosstab_max_labels: int = Field(
+        12,
+        ge=2,
+        description="Both columns of a label pair must have at most this many labels for "
+        "the pair to get a crosstab in the profile (common practice: a table a person reads).",
+    )
+    crosstab_limit: int = Field(
+        20,
+        ge=0,
+        description="At most this many crosstabs in the profile, strongest Cramér's V first "
+        "(common practice).",
+    )
+    missing_together_phi: float = Field(
+        0.5,
+        ge=0,
+        le=1,
+        description="Phi coefficient of two missing masks at or above which the pair is listed "
+        "as tending to be missing together (common practice: a strong association).",
+    )
+    duplicate_exact_rows: int = Field(
+        20_000_000,
+        ge=1,
+        description="Row hashes kept for exact duplicate-row counting; above it the count "
+        "comes from a HyperLogLog distinct-count estimate (common practice; 8 bytes a row).",
+    )
+    duplicate_examples: int = Field(
+        5,
+        ge=0,
+        description="Groups of repeated rows shown as examples, first occurrence first.",
+    )
+    duplicate_example_rows: int = Field(
+        10, ge=1, description="Row numbers listed per example group."
+    )

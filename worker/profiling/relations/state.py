@@ -1,0 +1,173 @@
+"""The across-column state of one table: pairs, twins, crosstabs and missing-together.
+
+``RelationsState`` is fed every prepared batch, merges with another state
+built over other rows of the same table, and turns into the profile's
+``pairs``, ``twins``, ``crosstabs`` and ``missing_together`` at the end.
+"""
+
+from __future__ import annotations
+
+import copy
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+from scipy.stats import rankdata
+
+from worker.profiling.relations.association import (
+    GroupMoments,
+    LabelCodes,
+    PairCounts,
+    cramers_v,
+    eta,
+)
+from worker.profiling.relations.comoments import CoMoments
+from worker.profiling.relations.crosstab import crosstab_statistics
+from worker.profiling.relations.missing_together import MissingTogether
+from worker.profiling.relations.sample import RowSample
+from worker.profiling.relations.twins import twin
+
+if TYPE_CHECKING:
+    from worker.profiling.options import ProfileOptions
+    from worker.profiling.prepared import PreparedBatch
+
+NUMERIC_KINDS = frozenset({"numeric"})
+LABEL_KINDS = frozenset({"categorical", "boolean"})
+
+
+class RelationsState:
+    """Mergeable across-column statistics over numeric and label candidate columns."""
+
+    def __init__(self, numeric: list[str], labels: list[str], options: ProfileOptions) -> None:
+        self.options = options
+        relations = options.relations
+        self.numeric = list(numeric)
+        self.labels = list(labels)
+        self.comoments = CoMoments(self.numeric)
+        self.sample = RowSample(self.numeric, relations.rank_sample_rows)
+        self.codes = LabelCodes(self.labels, relations.label_bound)
+        self.pair_counts = PairCounts(self.labels)
+        self.groups = GroupMoments()
+        self.missing: MissingTogether | None = None
+
+    def update(self, batch: PreparedBatch) -> None:
+        """Add one prepared batch."""
+        if self.missing is None:
+            self.missing = MissingTogether(list(batch.missing))
+        self.missing.update(batch.missing)
+        numbers = {name: batch.numbers[name] for name in self.numeric}
+        self.comoments.update(numbers)
+        self.sample.update(numbers, batch.offset)
+        codes = self.codes.encode({name: batch.labels[name] for name in self.labels})
+        sizes = {name: len(self.codes.index[name]) for name in self.labels}
+        self.pair_counts.update(codes, sizes)
+        self.groups.update(numbers, codes, sizes)
+
+    def merge(self, other: RelationsState) -> RelationsState:
+        """Combine with a state over other rows of the same table (neither is changed)."""
+        if other.numeric != self.numeric or other.labels != self.labels:
+            raise ValueError("relations states over different columns cannot be merged")
+        merged = copy.deepcopy(self)
+        merged.comoments = self.comoments.merge(other.comoments)
+        merged.sample = self.sample.merge(other.sample)
+        remap = merged.codes.remap(other.codes)
+        sizes = {name: len(merged.codes.index[name]) for name in self.labels}
+        merged.pair_counts = merged.pair_counts.merge(other.pair_counts, remap, sizes)
+        merged.groups = merged.groups.merge(other.groups, remap, sizes)
+        if self.missing is None or other.missing is None:
+            merged.missing = self.missing or other.missing
+        else:
+            merged.missing = self.missing.merge(other.missing)
+        return merged
+
+    def finalize(self, kinds: dict[str, str]) -> dict[str, Any]:
+        """The profile's "pairs", "twins", "crosstabs" and "missing_together"."""
+        relations = self.options.relations
+        numeric = [name for name in self.numeric if kinds.get(name) in NUMERIC_KINDS]
+        labels = [
+            name
+            for name in self.labels
+            if kinds.get(name) in LABEL_KINDS and name not in self.codes.dropped
+        ]
+        self.pair_counts.drop(self.codes.dropped)
+        self.groups.drop(self.codes.dropped)
+        pairs: list[dict[str, Any]] = []
+        twins: list[dict[str, Any]] = []
+        for a, b, moments in self.comoments.pairs():
+            if a not in numeric or b not in numeric:
+                continue
+            pairs.append({"a": a, "b": b, "method": "pearson", "value": moments.r, "n": moments.n})
+            found = twin(
+                a, b, moments, threshold=relations.twin_r, tolerance=relations.unit_tolerance
+            )
+            if found is not None:
+                twins.append(found)
+        pairs.extend(self._spearman(numeric))
+        crosstabs = []
+        for (a, b), table in self.pair_counts.counts.items():
+            if a not in labels or b not in labels:
+                continue
+            pairs.append(
+                {
+                    "a": a,
+                    "b": b,
+                    "method": "cramers_v",
+                    "value": cramers_v(table),
+                    "n": int(table.sum()),
+                }
+            )
+            if max(np.count_nonzero(table.sum(axis=1)), np.count_nonzero(table.sum(axis=0))) <= (
+                relations.crosstab_max_labels
+            ):
+                doc = crosstab_statistics(
+                    a, b, self.codes.index[a].labels, self.codes.index[b].labels, table
+                )
+                if doc is not None:
+                    crosstabs.append(doc)
+        for (num_name, label_name), (n, mean, m2) in self.groups.stats.items():
+            if num_name not in numeric or label_name not in labels:
+                continue
+            value, count = eta(n, mean, m2)
+            pairs.append(
+                {"a": num_name, "b": label_name, "method": "eta", "value": value, "n": count}
+            )
+        crosstabs.sort(key=lambda doc: (-doc["cramers_v"], doc["a"], doc["b"]))
+        min_phi = relations.missing_together_phi
+        return {
+            "pairs": [pair for pair in pairs if pair["value"] is not None],
+            "twins": twins,
+            "crosstabs": crosstabs[: relations.crosstab_limit],
+            "missing_together": self.missing.finalize(min_phi) if self.missing else [],
+        }
+
+    def _spearman(self, numeric: list[str]) -> list[dict[str, Any]]:
+        """Spearman's rho on the row sample (every row while the table fits in it)."""
+        sample = self.sample
+        exact = sample.exact
+        values = {name: sample.column(name) for name in numeric}
+        present = {name: ~np.isnan(column) for name, column in values.items()}
+        ranks: dict[str, np.ndarray] = {}
+        out = []
+        for i, a in enumerate(numeric):
+            for b in numeric[i + 1 :]:
+                both = present[a] & present[b]
+                n = int(both.sum())
+                if n == len(values[a]):  # no missing value: ranks of whole columns are reused
+                    ra = ranks.setdefault(a, rankdata(values[a]))
+                    rb = ranks.setdefault(b, rankdata(values[b]))
+                else:
+                    ra, rb = rankdata(values[a][both]), rankdata(values[b][both])
+                rho = _pearson(ra, rb) if n > 2 else None
+                doc: dict[str, Any] = {"a": a, "b": b, "method": "spearman", "value": rho, "n": n}
+                doc["exact"] = exact
+                if not exact:
+                    doc["sample"] = len(values[a])
+                out.append(doc)
+        return out
+
+
+def _pearson(x: np.ndarray, y: np.ndarray) -> float | None:
+    dx, dy = x - x.mean(), y - y.mean()
+    denominator = np.sqrt((dx * dx).sum() * (dy * dy).sum())
+    if denominator <= 0:
+        return None
+    return float(np.clip((dx * dy).sum() / denominator, -1.0, 1.0))
