@@ -73,6 +73,11 @@ class Settings(BaseSettings):
         "is enqueued again.",
     )
     sweeper_interval_seconds: int = Field(60, description="How often the sweeper looks.")
+    sweeper_max_attempts: int = Field(
+        3,
+        description="After this many started attempts the sweeper marks a stuck intake failed "
+        "instead of enqueuing it again (a file that kills its worker must not loop forever).",
+    )
     sweeper_enabled: bool = Field(
         True, description="Run the sweeper as a thread inside `tidewaiter serve`."
     )

@@ -10,7 +10,7 @@ import importlib
 import pkgutil
 
 from server.store.database import dispose_engines, get_engine, session_factory, session_scope
-from server.store.files import EmptyFile, FileStore, FileTooLarge, StoredFile
+from server.store.files import EmptyFile, FileStore, FileTooLarge, StoredFile, file_store
 from server.store.models import (
     Base,
     ColumnSummary,
@@ -42,6 +42,7 @@ __all__ = [
     "StoredFile",
     "Supplier",
     "dispose_engines",
+    "file_store",
     "get_engine",
     "load_models",
     "session_factory",

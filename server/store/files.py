@@ -13,6 +13,7 @@ The Parquet columnar copy of a stored file lives beside it
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import os
 import uuid
@@ -20,6 +21,10 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 from pathlib import Path
 from types import TracebackType
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from server.settings import Settings
 
 
 class FileTooLarge(Exception):
@@ -165,8 +170,11 @@ class FileStore:
 
     def delete(self, key: str) -> None:
         """Remove a stored file and its columnar copy (missing ones are fine)."""
-        self.path(key).unlink(missing_ok=True)
+        path = self.path(key)
+        path.unlink(missing_ok=True)
         self.columnar_path(key).unlink(missing_ok=True)
+        with contextlib.suppress(OSError):  # still holds other files
+            path.parent.rmdir()
 
     def leftovers(self) -> list[Path]:
         """Temporary files not yet committed or aborted (empty when nothing is in flight)."""
@@ -176,3 +184,8 @@ class FileStore:
 def _valid_key(key: str) -> bool:
     head, _, digest = key.partition("/")
     return len(digest) == 64 and head == digest[:2] and all(c in "0123456789abcdef" for c in digest)
+
+
+def file_store(settings: Settings) -> FileStore:
+    """The deployment's file store, under the settings' data folder."""
+    return FileStore(settings.data_dir, limit_bytes=settings.upload_limit_bytes)

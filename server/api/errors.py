@@ -1,0 +1,83 @@
+"""JSON errors: every error answer is ``{"detail": <one plain sentence>, "code": <word>}``.
+
+``detail`` keeps FastAPI's usual key, so clients that read it keep working;
+``code`` is a stable word a program can branch on. Bad input never becomes a
+500: validation errors are 422 with the fields named, and only a real fault
+of the service answers 500 (logged with its traceback).
+"""
+
+from __future__ import annotations
+
+import logging
+from http import HTTPStatus
+from typing import Any
+
+from fastapi import FastAPI, Request
+from fastapi.exceptions import RequestValidationError
+from fastapi.responses import JSONResponse
+from starlette.exceptions import HTTPException as StarletteHTTPException
+
+log = logging.getLogger(__name__)
+
+
+class ApiError(Exception):
+    """An answer other than success, with its status, message and code."""
+
+    def __init__(self, status: int, message: str, *, code: str | None = None, **extra: Any):
+        super().__init__(message)
+        self.status = status
+        self.message = message
+        self.code = code or _code_for(status)
+        self.extra = extra
+
+
+def _code_for(status: int) -> str:
+    try:
+        return HTTPStatus(status).phrase.lower().replace(" ", "_").replace("-", "_")
+    except ValueError:
+        return "error"
+
+
+def error_response(
+    status: int, message: str, code: str, headers: dict[str, str] | None = None, **extra: Any
+) -> JSONResponse:
+    """The JSON answer for an error."""
+    return JSONResponse(
+        {"detail": message, "code": code, **extra}, status_code=status, headers=headers
+    )
+
+
+def _field_name(location: tuple[Any, ...] | list[Any]) -> str:
+    parts = [str(p) for p in location if p not in ("body", "query", "path", "header", "form")]
+    return ".".join(parts) or "request"
+
+
+def install_error_handlers(app: FastAPI) -> None:
+    """Make every error answer JSON of one shape."""
+
+    @app.exception_handler(ApiError)
+    async def _api_error(_request: Request, exc: ApiError) -> JSONResponse:
+        return error_response(exc.status, exc.message, exc.code, **exc.extra)
+
+    @app.exception_handler(StarletteHTTPException)
+    async def _http_error(_request: Request, exc: StarletteHTTPException) -> JSONResponse:
+        message = exc.detail if isinstance(exc.detail, str) else HTTPStatus(exc.status_code).phrase
+        return error_response(
+            exc.status_code, message, _code_for(exc.status_code), headers=exc.headers
+        )
+
+    @app.exception_handler(RequestValidationError)
+    async def _invalid(_request: Request, exc: RequestValidationError) -> JSONResponse:
+        problems = [
+            {"field": _field_name(e.get("loc", ())), "message": e.get("msg", "invalid")}
+            for e in exc.errors()
+        ]
+        summary = "; ".join(f"{p['field']}: {p['message']}" for p in problems)
+        return error_response(
+            422, f"invalid request ({summary})", "invalid_request", errors=problems
+        )
+
+    @app.exception_handler(Exception)
+    async def _unexpected(_request: Request, exc: Exception) -> JSONResponse:
+        log.error("unexpected error", exc_info=exc)
+        return error_response(500, "the service hit an unexpected error; it is logged", "internal")
