@@ -1,18 +1,30 @@
-"""Entry point of the engine: read a file in batches and assemble its profile."""
+"""Entry point of the engine: read a file in batches and assemble its profile.
+
+Each batch is prepared once (``prepared.py``: missing masks, parsed numbers,
+trimmed labels), then updates one mergeable state per column
+(``columns/``) and the across-column states (``relations/``). At the end the
+states are finalized into the profile document of the design notes.
+"""
 
 from __future__ import annotations
 
 import hashlib
 import os
-from collections.abc import Callable
+import threading
+import time
+from collections.abc import Callable, Iterator
 from pathlib import Path
 from typing import Any
 
 import pyarrow as pa
-import pyarrow.csv as pacsv
+import pyarrow.compute as pc
 
+from worker.profiling.columns.column import ColumnState
 from worker.profiling.errors import ProfileError
 from worker.profiling.options import ProfileOptions
+from worker.profiling.prepared import BatchPlan, prepare_batch
+from worker.profiling.relations.duplicates import DuplicateState
+from worker.profiling.relations.state import RelationsState
 
 FORMAT_VERSION = 1
 
@@ -38,46 +50,293 @@ def profile_file(
     options = options or ProfileOptions()
     path = Path(path)
     report = progress or (lambda stage, share: None)
+    if not path.is_file():
+        raise ProfileError(f"there is no file at {path.name}")
+    digest = _Digest(path)
     report("reading", 0.0)
-    try:
-        table = pacsv.read_csv(
-            path,
-            convert_options=pacsv.ConvertOptions(
-                column_types={}, strings_can_be_null=True, null_values=[""]
-            ),
-        )
-    except (pa.ArrowInvalid, UnicodeDecodeError) as exc:
-        raise ProfileError(f"cannot read the file as a table: {exc}") from exc
-    report("summarising", 1.0)
-    columns = []
-    for position, name in enumerate(table.column_names):
-        col = table.column(name)
-        columns.append(
-            {
-                "name": name,
-                "position": position,
-                "count": len(col) - col.null_count,
-                "missing": col.null_count,
-            }
-        )
-    return {
-        "format_version": FORMAT_VERSION,
-        "source": {
+    with _open_table(path, options, sheet) as source:
+        profiler = TableProfiler(source.column_names, options, source.info)
+        writer = _columnar_writer(columnar_copy)
+        try:
+            for raw in _batches(source):
+                profiler.update(raw)
+                if writer is not None:
+                    writer.write(raw)
+                report("reading", source.bytes_read() / max(source.total_bytes, 1))
+        finally:
+            if writer is not None:
+                writer.close()
+        report("summarising", 1.0)
+        profile = profiler.finalize()
+        profile["source"] = {
             "name": source_name or path.name,
             "bytes": path.stat().st_size,
-            "sha256": hashlib.sha256(path.read_bytes()).hexdigest(),
-            "format": "csv",
-        },
-        "dataset": {
-            "rows": table.num_rows,
-            "columns": table.num_columns,
-            "missing_cells": sum(c["missing"] for c in columns),
+            "sha256": digest.result(),
+            **source.info.as_dict(),
+        }
+        profile["dataset"]["parse_errors"] = list(source.parse_errors)
+        profile["dataset"]["parse_error_count"] = source.parse_error_count
+    report("judging", 1.0)
+    profile.update(_judge(profile, options))
+    return profile
+
+
+class TableProfiler:
+    """The states of one table: per column, across columns and duplicate rows; mergeable."""
+
+    def __init__(self, column_names: list[str], options: ProfileOptions, info: Any) -> None:
+        self.options = options
+        self.column_names = list(column_names)
+        self.decimal = getattr(info, "decimal", ".") or "."
+        self.thousands = getattr(info, "thousands", None)
+        now = time.time()
+        self.columns = {
+            name: ColumnState(name, position, options, now=now)
+            for position, name in enumerate(self.column_names)
+        }
+        self.relations: RelationsState | None = None
+        self.duplicates = DuplicateState(self.column_names, options)
+        self.rows = 0
+        self._plan = self._make_plan()
+
+    def _make_plan(self) -> BatchPlan:
+        numeric = {n for n, c in self.columns.items() if c.candidates and c.candidates.numeric}
+        labels = {n for n, c in self.columns.items() if c.candidates and c.candidates.labels}
+        return BatchPlan(
+            numeric=frozenset(numeric),
+            labels=frozenset(labels),
+            missing_tokens=tuple(self.options.missing_tokens),
+            decimal=self.decimal,
+            thousands=self.thousands,
+        )
+
+    def update(self, raw: pa.RecordBatch) -> None:
+        """Add the next batch of rows (in table order)."""
+        if raw.num_rows == 0:
+            return
+        prepared = prepare_batch(raw, self.rows, self._plan)
+        undecided = [c for c in self.columns.values() if c.candidates is None]
+        decided = False
+        for state in undecided:
+            text = prepared.text.get(state.name)
+            column = raw.column(state.name)
+            present = (
+                text.drop_null()
+                if text is not None
+                else pc.filter(column, pa.array(~prepared.missing[state.name]))
+            )
+            if len(present):
+                state.choose(column, present, self.decimal, self.thousands)
+                decided = True
+        if decided:
+            self._plan = self._make_plan()
+            prepared = prepare_batch(raw, self.rows, self._plan)
+        if self.relations is None:
+            self.relations = RelationsState(
+                self._relation_numeric(), self._relation_labels(), self.options
+            )
+        for state in self.columns.values():
+            state.update(prepared)
+        self.relations.update(prepared)
+        self.duplicates.update(prepared)
+        self.rows += raw.num_rows
+
+    def _relation_numeric(self) -> list[str]:
+        return [
+            n
+            for n, c in self.columns.items()
+            if c.candidates and c.candidates.numeric and (c.candidates.number_share > 0.5)
+        ]
+
+    def _relation_labels(self) -> list[str]:
+        return [n for n, c in self.columns.items() if c.candidates and c.candidates.labels]
+
+    def finalize(self) -> dict[str, Any]:
+        """The profile document without its ``source`` section and judgement."""
+        columns = [state.finalize() for state in self.columns.values()]
+        kinds = {column["name"]: column["kind"] for column in columns}
+        relations: dict[str, Any] = {
+            "pairs": [],
+            "twins": [],
+            "crosstabs": [],
+            "missing_together": [],
+        }
+        if self.relations is not None:
+            relations = self.relations.finalize(kinds)
+        duplicates = self.duplicates.finalize()
+        dataset = {
+            "rows": self.rows,
+            "columns": len(columns),
+            "missing_cells": sum(column["missing"] for column in columns),
+            "duplicate_rows": duplicates["duplicate_rows"],
+            "duplicate_rows_exact": duplicates["exact"],
+            "duplicate_examples": duplicates["examples"],
+            "candidate_keys": candidate_keys(columns, self.rows),
+            "missing_together": relations.get("missing_together", []),
+            "kinds": _kind_counts(columns),
             "parse_errors": [],
-        },
-        "columns": columns,
-        "pairs": [],
-        "twins": [],
-        "crosstabs": [],
-        "flags": [],
-        "score": None,
-    }
+        }
+        return {
+            "format_version": FORMAT_VERSION,
+            "dataset": dataset,
+            "columns": columns,
+            "pairs": relations.get("pairs", []),
+            "twins": relations.get("twins", []),
+            "crosstabs": relations.get("crosstabs", []),
+            "flags": [],
+            "score": None,
+        }
+
+
+def candidate_keys(columns: list[dict[str, Any]], rows: int) -> list[dict[str, Any]]:
+    """Columns whose values are all distinct and none missing (a key of the table).
+
+    With a distinct-count sketch the column is listed as a likely key when the
+    estimate is within three standard errors of the row count.
+    """
+    keys = []
+    for column in columns:
+        if rows == 0 or column["missing"] or column["kind"] in ("empty", "boolean"):
+            continue
+        numeric = column.get("numeric") or {}
+        if column["kind"] == "numeric" and not numeric.get("integers"):
+            continue
+        if column["distinct_exact"]:
+            if column["distinct"] == rows:
+                keys.append({"column": column["name"], "exact": True})
+        elif column["distinct"] >= rows * (1 - 3 * column.get("distinct_relative_error", 0)):
+            keys.append({"column": column["name"], "exact": False})
+    return keys
+
+
+def _kind_counts(columns: list[dict[str, Any]]) -> dict[str, int]:
+    counts: dict[str, int] = {}
+    for column in columns:
+        counts[column["kind"]] = counts.get(column["kind"], 0) + 1
+    return counts
+
+
+def _judge(profile: dict[str, Any], options: ProfileOptions) -> dict[str, Any]:
+    from worker.profiling.judgement import assess
+
+    judged = assess(profile, thresholds=options.thresholds)
+    return {"flags": judged["flags"], "score": judged["score"], "verdict": judged.get("verdict")}
+
+
+def _batches(source: Any) -> Iterator[pa.RecordBatch]:
+    """The source's batches, the next one read in a thread while this one is profiled."""
+    queue: list[Any] = []
+    iterator = iter(source.batches())
+
+    def fetch() -> None:
+        try:
+            queue.append(next(iterator))
+        except StopIteration:
+            queue.append(StopIteration)
+        except BaseException as exc:  # handed to the consumer below
+            queue.append(exc)
+
+    worker = threading.Thread(target=fetch, daemon=True)
+    worker.start()
+    while True:
+        worker.join()
+        item = queue.pop()
+        if item is StopIteration:
+            return
+        if isinstance(item, BaseException):
+            raise item
+        worker = threading.Thread(target=fetch, daemon=True)
+        worker.start()
+        yield item
+
+
+class _Digest:
+    """The file's SHA-256, computed in a thread beside the profiling (hashlib frees the GIL)."""
+
+    def __init__(self, path: Path) -> None:
+        self._value: str | None = None
+        self._thread = threading.Thread(target=self._run, args=(path,), daemon=True)
+        self._thread.start()
+
+    def _run(self, path: Path) -> None:
+        digest = hashlib.sha256()
+        with path.open("rb") as handle:
+            while chunk := handle.read(1 << 22):
+                digest.update(chunk)
+        self._value = digest.hexdigest()
+
+    def result(self) -> str | None:
+        self._thread.join()
+        return self._value
+
+
+def _columnar_writer(path: Path | None) -> Any:
+    if path is None:
+        return None
+    from worker.profiling.columnar import ColumnarCopy
+
+    return ColumnarCopy(path)
+
+
+def _open_table(path: Path, options: ProfileOptions, sheet: str | None) -> Any:
+    try:
+        from worker.profiling.readers import open_table
+    except ImportError:
+        return _CsvText(path)
+    return open_table(path, options=options, sheet=sheet)
+
+
+class _CsvText:
+    """A plain comma-separated UTF-8 reader, all columns as text (until the readers land)."""
+
+    def __init__(self, path: Path) -> None:
+        import csv
+
+        import pyarrow.csv as pacsv
+
+        from worker.profiling.readers.source import SourceInfo
+
+        self.path = path
+        self.total_bytes = path.stat().st_size
+        with path.open(encoding="utf-8-sig", newline="") as handle:
+            header = next(csv.reader(handle), None)
+        if not header:
+            raise ProfileError("the file is empty")
+        self.column_names = header
+        self.info = SourceInfo(format="csv", encoding="utf-8", delimiter=",", quotechar='"')
+        self.parse_errors: list[dict[str, Any]] = []
+        self.parse_error_count = 0
+        self._done = 0
+        try:
+            self._reader = pacsv.open_csv(
+                path,
+                read_options=pacsv.ReadOptions(block_size=1 << 26),
+                convert_options=pacsv.ConvertOptions(
+                    column_types={name: pa.string() for name in header},
+                    strings_can_be_null=True,
+                    null_values=[""],
+                    quoted_strings_can_be_null=True,
+                ),
+            )
+        except (pa.ArrowInvalid, UnicodeDecodeError) as exc:
+            raise ProfileError(f"cannot read the file as a table: {exc}") from exc
+
+    def bytes_read(self) -> int:
+        return self._done
+
+    def batches(self) -> Iterator[pa.RecordBatch]:
+        rows = 0
+        try:
+            for batch in self._reader:
+                rows += batch.num_rows
+                self._done = min(self.total_bytes, self._done + (1 << 26))
+                yield batch
+        except pa.ArrowInvalid as exc:
+            raise ProfileError(f"cannot read the file as a table after row {rows}: {exc}") from exc
+        self._done = self.total_bytes
+
+    def __enter__(self) -> _CsvText:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self._reader.close()

@@ -47,6 +47,86 @@ class ProfileOptions(BaseModel):
         DEFAULT_MISSING_TOKENS,
         description="Cell texts counted as missing, after trimming whitespace (common practice).",
     )
+    kll_k: int = Field(
+        800,
+        description="Size parameter k of the KLL quantile sketch; its normalized rank error "
+        "shrinks roughly as 1/k (Karnin, Lang and Liberty 2016; DataSketches default is 200).",
+    )
+    distinct_exact_bound: int = Field(
+        100_000,
+        description="Distinct values per column counted exactly; above it a HyperLogLog "
+        "(Flajolet et al. 2007) estimates the count (common practice).",
+    )
+    hll_precision: int = Field(
+        16,
+        description="HyperLogLog registers = 2^precision; relative error 1.04/sqrt(2^p), "
+        "0.41 % at 16 (Flajolet et al. 2007).",
+    )
+    label_exact_bound: int = Field(
+        10_000,
+        description="Distinct labels per column counted exactly; above it a Misra–Gries "
+        "summary (Misra and Gries 1982) keeps the most frequent ones (common practice).",
+    )
+    label_summary_size: int = Field(
+        1_000, description="Labels kept by the Misra–Gries summary (common practice)."
+    )
+    top_labels: int = Field(20, description="Most frequent labels listed (common practice).")
+    rare_label_share: float = Field(
+        0.01, description="A label below this share of a column's values is rare (common practice)."
+    )
+    label_synonyms: dict[str, str] = Field(
+        default_factory=dict,
+        description='Declared synonyms folded together as label variants, e.g. {"F": "Female"}.',
+    )
+    label_candidate_max: int = Field(
+        1_000,
+        description="A text column with at most this many distinct values in its first batch "
+        "(or under half of its values distinct) is counted label by label (common practice).",
+    )
+    kind_majority_share: float = Field(
+        0.5,
+        description="Share of a column's values a kind must fit to be the column's kind; the "
+        "rest is mixed-kinds evidence (common practice).",
+    )
+    identifier_distinct_share: float = Field(
+        0.95,
+        description="A text column with at least this share of distinct values, short and "
+        "without spaces, is an identifier (common practice).",
+    )
+    categorical_max_distinct: int = Field(
+        1_000,
+        description="A text column with more distinct values than this and more than half "
+        "of its values distinct is free text, not labels (common practice).",
+    )
+    sentinel_values: tuple[float, ...] = Field(
+        (-9999.0, -999.0, -99.0, 999.0, 9999.0, 99999.0, 999999.0),
+        description="Numeric codes suppliers use for an unknown value, checked as disguised "
+        "missing values (common practice).",
+    )
+    zero_spike_share: float = Field(
+        0.05,
+        description="Zeros are a suspected spike from this share of a column's values, when "
+        "no other values lie near zero (common practice).",
+    )
+    histogram_max_bins: int = Field(
+        100,
+        description="Most histogram bins; Freedman–Diaconis bins are capped here "
+        "(common practice).",
+    )
+    sample_size: int = Field(
+        20_000,
+        description="Uniform sample per numeric column above the exact bound, for MAD, "
+        "density and sentinels (common practice).",
+    )
+    kde_sample_size: int = Field(
+        10_000, description="Most values a density curve is estimated from (common practice)."
+    )
+    kde_points: int = Field(128, description="Grid points of a density curve (common practice).")
+    pattern_sample: int = Field(
+        1_000,
+        description="Text values per batch whose character-class shapes are counted "
+        "(common practice).",
+    )
     parse_error_limit: int = Field(
         100,
         ge=0,

@@ -1,0 +1,172 @@
+"""All the states of one column, fed from prepared batches and turned into its profile entry."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+
+from worker.profiling.columns.datetime import DatetimeState
+from worker.profiling.columns.distinct import DistinctState, hash_values
+from worker.profiling.columns.kinds import Candidates, KindCounts, choose_candidates, decide_kind
+from worker.profiling.columns.labels import LabelState
+from worker.profiling.columns.missing import MissingState
+from worker.profiling.columns.numeric import NumericState
+from worker.profiling.columns.text import TextState
+from worker.profiling.options import ProfileOptions
+from worker.profiling.prepared import PreparedBatch
+
+
+class ColumnState:
+    """The mergeable states of one column; parsers start once its candidates are known."""
+
+    def __init__(self, name: str, position: int, options: ProfileOptions, *, now: float) -> None:
+        self.name = name
+        self.position = position
+        self.options = options
+        self.now = now
+        self.candidates: Candidates | None = None
+        self.physical_type: str | None = None
+        self.missing = MissingState()
+        self.kinds = KindCounts()
+        self.distinct = DistinctState(options.distinct_exact_bound, options.hll_precision)
+        self.numeric: NumericState | None = None
+        self.labels: LabelState | None = None
+        self.dates: DatetimeState | None = None
+        self.text: TextState | None = None
+
+    def choose(self, column: pa.Array, present: pa.Array, decimal: str, thousands: str | None):
+        """Decide the candidate parsers from the column's first non-missing values."""
+        options = self.options
+        self.candidates = choose_candidates(
+            column,
+            present,
+            decimal=decimal,
+            thousands=thousands,
+            label_candidate_max=options.label_candidate_max,
+        )
+        if self.candidates.numeric:
+            self.numeric = NumericState(options)
+        if self.candidates.labels:
+            self.labels = LabelState(options.label_exact_bound, options.label_summary_size)
+        if self.candidates.date_formats:
+            self.dates = DatetimeState(
+                self.candidates.date_formats,
+                now=self.now,
+                exact_bound=options.exact_bound,
+                kll_k=options.kll_k,
+            )
+        if self.candidates.text:
+            self.text = TextState(options.pattern_sample)
+
+    def update(self, batch: PreparedBatch) -> None:
+        name = self.name
+        raw = batch.raw.column(name)
+        if self.physical_type is None:
+            self.physical_type = str(raw.type)
+        missing = batch.missing[name]
+        self.missing.update(batch.missing_counts[name], batch.num_rows)
+        present_count = int(batch.num_rows - np.count_nonzero(missing))
+        if self.candidates is None:
+            self.kinds.update(present_count, None, None)
+            return
+        text = batch.text.get(name)
+        numbers = batch.numbers.get(name)
+        self.kinds.update(present_count, numbers, text)
+        if present_count == 0:
+            return
+        if text is not None:
+            self.distinct.update(hash_values(text))
+        elif numbers is not None:
+            self.distinct.update(hash_values(numbers))
+        else:
+            self.distinct.update(hash_values(pc.cast(raw, pa.string())))
+        if self.numeric is not None and numbers is not None:
+            self.numeric.update(numbers)
+        if self.labels is not None:
+            if self.text is not None:
+                # Labels are counted as written, so "active " and "Active" stay apart
+                # and show up as variants.
+                labels = pc.if_else(pa.array(missing), pa.scalar(None, raw.type), raw)
+            else:
+                labels = batch.labels[name]
+            self.labels.update(labels)
+        if self.dates is not None:
+            self.dates.update(text if text is not None else raw)
+        if self.text is not None:
+            self.text.update(raw, missing)
+
+    def merge(self, other: ColumnState) -> ColumnState:
+        """Combine with the same column's state over other rows."""
+        out = ColumnState(self.name, self.position, self.options, now=self.now)
+        out.candidates = self.candidates or other.candidates
+        out.physical_type = self.physical_type or other.physical_type
+        out.missing = self.missing.merge(other.missing)
+        out.kinds = self.kinds.merge(other.kinds)
+        out.distinct = self.distinct.merge(other.distinct)
+        for attr in ("numeric", "labels", "dates", "text"):
+            mine, theirs = getattr(self, attr), getattr(other, attr)
+            if mine is not None and theirs is not None:
+                setattr(out, attr, mine.merge(theirs))
+            else:
+                setattr(out, attr, mine if mine is not None else theirs)
+        return out
+
+    def finalize(self) -> dict[str, Any]:
+        """The column's entry of the profile document."""
+        options = self.options
+        missing = self.missing.finalize()
+        distinct = self.distinct.finalize()
+        text = self.text.finalize() if self.text is not None else None
+        dates = self.dates.finalize() if self.dates is not None else None
+        inner_space = bool(
+            text and sum(p["share"] for p in text["patterns"] if " " in p["pattern"].strip()) > 0.2
+        )
+        decision = decide_kind(
+            self.kinds,
+            candidates=self.candidates,
+            dates_parsed=dates["parsed"] if dates else 0,
+            date_examples=[],
+            labels=self.labels.folded_values() if self.labels is not None else None,
+            distinct=distinct["distinct"],
+            mean_length=text["mean_length"] if text else None,
+            has_inner_space=inner_space,
+            majority=options.kind_majority_share,
+            identifier_share=options.identifier_distinct_share,
+            categorical_max=options.categorical_max_distinct,
+        )
+        kind = decision.kind
+        numeric = sentinels = None
+        if kind == "numeric" and self.numeric is not None:
+            numeric, sentinels = self.numeric.finalize()
+        labels = None
+        if kind in ("categorical", "boolean") and self.labels is not None:
+            labels = self.labels.finalize(
+                top=options.top_labels,
+                rare_share=options.rare_label_share,
+                synonyms=options.label_synonyms,
+            )
+        evidence = dict(decision.evidence)
+        if kind == "numeric" and self.candidates is not None and self.candidates.text:
+            evidence["numbers_stored_as_text"] = True
+        if dates and dates.get("ambiguous"):
+            evidence["ambiguous_dates"] = {
+                "format": dates["format"],
+                "alternative_format": dates["alternative_format"],
+            }
+        return {
+            "name": self.name,
+            "position": self.position,
+            "kind": kind,
+            "physical_type": self.physical_type,
+            **missing,
+            "suspected_sentinels": sentinels or [],
+            **distinct,
+            "kind_evidence": evidence,
+            "numeric": numeric,
+            "labels": labels,
+            "datetime": dates if kind == "datetime" else None,
+            "text": text,
+        }

@@ -1,0 +1,79 @@
+"""Disguised missing values in a numeric column: sentinel codes and spikes of zeros.
+
+Suppliers often write a code such as -999 or 9999 where a value is unknown.
+The candidates are a configurable list of such codes plus zero. A code is
+suspected when it stands apart from the bulk of the other values: outside
+their far-out Tukey fences (3 × IQR; J. W. Tukey, Exploratory Data Analysis,
+1977), or negative where every other value is at least zero. Zero is suspected
+when it is a spike: at least ``zero_share`` of the values are zero while
+almost no other values lie within one Freedman–Diaconis bin width of zero
+(D. Freedman and P. Diaconis, Z. Wahrscheinlichkeitstheorie 57, 1981). The
+figures come from the exact values, or from a uniform sample above the exact
+bound. Suspected values are reported, never counted as missing.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from collections.abc import Sequence
+from typing import Any
+
+import numpy as np
+
+
+class SentinelCounts:
+    """Counts of each candidate code (and zero) in a column, mergeable."""
+
+    def __init__(self, candidates: Sequence[float]) -> None:
+        self.candidates = np.asarray(sorted(set(candidates) | {0.0}), dtype=np.float64)
+        self.counts: Counter[float] = Counter()
+
+    def update(self, values: np.ndarray) -> None:
+        hits = values[np.isin(values, self.candidates)]
+        if hits.size:
+            found, counts = np.unique(hits, return_counts=True)
+            self.counts.update(dict(zip(found.tolist(), counts.tolist(), strict=True)))
+
+    def merge(self, other: SentinelCounts) -> SentinelCounts:
+        out = SentinelCounts(self.candidates.tolist())
+        out.counts = self.counts + other.counts
+        return out
+
+
+def suspected_sentinels(
+    counts: Counter[float],
+    values: np.ndarray,
+    total: int,
+    *,
+    zero_share: float = 0.05,
+) -> list[dict[str, Any]]:
+    """The candidate codes that stand apart from the bulk, with their counts in the column.
+
+    ``values`` are the column's values (all of them, or a uniform sample) and
+    ``total`` the column's non-missing count.
+    """
+    present = {value: count for value, count in counts.items() if count}
+    if not present or values.size == 0:
+        return []
+    codes = np.array(sorted(present), dtype=np.float64)
+    others = values[~np.isin(values, codes)]
+    found: list[dict[str, Any]] = []
+    if others.size < 4:
+        return found
+    q1, q3 = np.quantile(others, [0.25, 0.75])
+    iqr = q3 - q1
+    low, high = q1 - 3.0 * iqr, q3 + 3.0 * iqr
+    all_non_negative = bool(others.min() >= 0)
+    for code in codes.tolist():
+        count = present[code]
+        if code == 0.0:
+            width = 2.0 * iqr / others.size ** (1.0 / 3.0) if iqr > 0 else 0.0
+            near = np.count_nonzero(np.abs(others) <= width) / others.size
+            share = count / total
+            apart = code < low or code > high or near < 0.1 * share
+            if share >= zero_share and apart:
+                found.append({"value": 0.0, "count": count})
+            continue
+        if code < low or code > high or (code < 0 and all_non_negative):
+            found.append({"value": code, "count": count})
+    return found

@@ -1,0 +1,110 @@
+"""Text figures of a column: lengths, stray whitespace and character-class shapes.
+
+A shape replaces each run of capitals by "A", of small letters by "a", of
+digits by "9" and of spaces by one space, keeping punctuation, so
+"AB-1234" and "XY-9" share the shape "A-9". Shapes are counted on up to
+``pattern_sample`` values per batch.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from typing import Any
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+
+_SHAPES = (
+    (r"\p{Lu}+", "A"),
+    (r"[\p{Ll}\p{Lo}\p{Lt}\p{Lm}]+", "a"),
+    (r"\p{Nd}+", "9"),
+    (r"\s+", " "),
+)
+
+
+def shapes(values: pa.Array) -> pa.Array:
+    """The character-class shape of each value."""
+    out = values
+    for pattern, replacement in _SHAPES:
+        out = pc.replace_substring_regex(out, pattern, replacement)
+    return out
+
+
+class TextState:
+    """Length figures, whitespace counts and shape counts, mergeable."""
+
+    def __init__(self, pattern_sample: int = 1_000) -> None:
+        self.pattern_sample = pattern_sample
+        self.n = 0
+        self.min_length: int | None = None
+        self.max_length: int | None = None
+        self.total_length = 0
+        self.leading = 0
+        self.trailing = 0
+        self.patterns: Counter[str] = Counter()
+        self.sampled = 0
+
+    def update(self, raw: pa.Array, missing: np.ndarray) -> None:
+        """Add the raw (untrimmed) text of one batch; ``missing`` marks cells to skip."""
+        present = raw.filter(pa.array(~missing)) if missing.any() else raw
+        if len(present) == 0:
+            return
+        lengths = pc.utf8_length(present)
+        low, high = pc.min_max(lengths).values()
+        self.n += len(present)
+        self.total_length += int(pc.sum(lengths).as_py())
+        self.min_length = _fold(min, self.min_length, low.as_py())
+        self.max_length = _fold(max, self.max_length, high.as_py())
+        self.leading += _count_changed(lengths, pc.utf8_ltrim_whitespace(present))
+        self.trailing += _count_changed(lengths, pc.utf8_rtrim_whitespace(present))
+        sample = present.slice(0, self.pattern_sample)
+        counted = pc.value_counts(shapes(sample))
+        self.patterns.update(
+            dict(
+                zip(
+                    counted.field("values").to_pylist(),
+                    counted.field("counts").to_pylist(),
+                    strict=True,
+                )
+            )
+        )
+        self.sampled += len(sample)
+
+    def merge(self, other: TextState) -> TextState:
+        out = TextState(self.pattern_sample)
+        out.n = self.n + other.n
+        out.min_length = _fold(min, self.min_length, other.min_length)
+        out.max_length = _fold(max, self.max_length, other.max_length)
+        out.total_length = self.total_length + other.total_length
+        out.leading = self.leading + other.leading
+        out.trailing = self.trailing + other.trailing
+        out.patterns = self.patterns + other.patterns
+        out.sampled = self.sampled + other.sampled
+        return out
+
+    def finalize(self, top: int = 10) -> dict[str, Any]:
+        return {
+            "min_length": self.min_length,
+            "max_length": self.max_length,
+            "mean_length": self.total_length / self.n if self.n else None,
+            "leading_whitespace": self.leading,
+            "trailing_whitespace": self.trailing,
+            "patterns": [
+                {"pattern": p, "count": c, "share": c / self.sampled}
+                for p, c in sorted(self.patterns.items(), key=lambda kv: (-kv[1], kv[0]))[:top]
+            ],
+            "patterns_sampled": self.sampled,
+        }
+
+
+def _fold(pick: Any, current: int | None, new: int | None) -> int | None:
+    if current is None:
+        return new
+    if new is None:
+        return current
+    return pick(current, new)
+
+
+def _count_changed(lengths: pa.Array, trimmed: pa.Array) -> int:
+    return int(pc.sum(pc.not_equal(lengths, pc.utf8_length(trimmed))).as_py() or 0)
