@@ -110,14 +110,18 @@ def ks_exact(baseline: Sequence[float], target: Sequence[float]) -> float:
 
 
 def ks_p_value(statistic: float, n_baseline: int, n_target: int) -> float | None:
-    """Asymptotic p-value of the two-sample KS statistic (Kolmogorov's limiting distribution).
+    """Approximate p-value of the two-sample KS statistic.
 
-    References: Smirnov (1948); the limiting distribution is scipy.stats.kstwobign.
+    The one-sample distribution of the statistic for n = n_b·n_t / (n_b + n_t)
+    rows (scipy.stats.kstwo), the usual approximation for two large samples.
+
+    References: Smirnov (1948); Simard & L'Ecuyer (2011), Computing the
+    two-sided Kolmogorov-Smirnov distribution, Journal of Statistical Software 39(11).
     """
     if n_baseline <= 0 or n_target <= 0:
         return None
     effective = n_baseline * n_target / (n_baseline + n_target)
-    return float(stats.kstwobign.sf(np.sqrt(effective) * statistic))
+    return float(stats.kstwo.sf(statistic, max(1, round(effective))))
 
 
 def js_distance(p: Sequence[float], q: Sequence[float]) -> float:

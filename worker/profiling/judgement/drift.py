@@ -23,7 +23,7 @@ How the distances are read off stored summaries:
   kept by the engine for small columns): the largest gap between the two
   empirical distribution functions, with scipy's exact p-value. Otherwise the
   largest gap between the two cumulative functions read off the percentiles,
-  off by at most about 0.01 per side, with the asymptotic p-value.
+  off by at most about 0.01 per side, with an approximate p-value.
 - Labels: each side's counts of its listed labels plus one bucket for the
   labels it did not list (``other_count``). A label is new (vanished) when it
   is listed in the target (baseline) and absent from the other side's list;

@@ -1,0 +1,139 @@
+"""compare_profiles: the drift document between two stored profiles."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from scipy import stats
+from scipy.spatial.distance import jensenshannon
+
+from tests.worker.profiling.judgement.planted import label_column, numeric_column, profile_of
+from worker.profiling.judgement import FlagThresholds, compare_profiles
+
+T = FlagThresholds()
+
+
+def _rng() -> np.random.Generator:
+    return np.random.default_rng(42)
+
+
+def _column(drift: dict, name: str) -> dict:
+    return next(c for c in drift["columns"] if c["name"] == name)
+
+
+def test_numeric_drift_against_scipy_on_the_raw_values() -> None:
+    rng = _rng()
+    old, new = rng.normal(18, 2, 4000), rng.normal(18.8, 2.4, 3000)
+    drift = compare_profiles(
+        profile_of([numeric_column("weight_kg", old.tolist())]),
+        profile_of([numeric_column("weight_kg", new.tolist())]),
+        thresholds=T,
+    )
+    column = _column(drift, "weight_kg")
+    # Reference: scipy.stats.ks_2samp on the values the two profiles summarise.
+    assert column["ks"] == pytest.approx(stats.ks_2samp(old, new).statistic, abs=0.015)
+    assert column["ks_exact"] is False
+    # Mean shift in baseline SDs, against numpy on the raw values.
+    assert column["mean_shift_sd"] == pytest.approx(
+        (new.mean() - old.mean()) / old.std(ddof=1), rel=1e-9
+    )
+    # PSI against the same decile PSI computed from the raw values with numpy.
+    edges = np.percentile(old, np.arange(10, 100, 10))
+    e = np.histogram(old, np.concatenate([[-np.inf], edges, [np.inf]]))[0] / len(old)
+    a = np.histogram(new, np.concatenate([[-np.inf], edges, [np.inf]]))[0] / len(new)
+    assert column["psi"] == pytest.approx(float(np.sum((a - e) * np.log(a / e))), abs=0.01)
+    assert column["psi"] > T.psi_warning
+
+
+def test_exact_ks_when_both_profiles_keep_the_values() -> None:
+    rng = _rng()
+    old, new = np.round(rng.normal(5, 1, 40), 1), np.round(rng.normal(5.6, 1, 35), 1)
+    base = profile_of([numeric_column("depth_m", old.tolist())])
+    target = profile_of([numeric_column("depth_m", new.tolist())])
+    base["columns"][0]["numeric"]["values"] = sorted(old.tolist())
+    target["columns"][0]["numeric"]["values"] = sorted(new.tolist())
+    column = _column(compare_profiles(base, target, thresholds=T), "depth_m")
+    reference = stats.ks_2samp(old, new, method="exact")  # scipy.stats.ks_2samp, exact
+    assert column["ks_exact"] is True
+    assert column["ks"] == pytest.approx(reference.statistic, abs=1e-12)
+    assert column["ks_p_value"] == pytest.approx(reference.pvalue, rel=1e-9)
+
+
+def test_label_drift_against_scipy() -> None:
+    old = ["A"] * 500 + ["B"] * 300 + ["C"] * 200
+    new = ["A"] * 300 + ["B"] * 300 + ["D"] * 150  # C vanished, D is new
+    drift = compare_profiles(
+        profile_of([label_column("grade", old)]),
+        profile_of([label_column("grade", new)]),
+        thresholds=T,
+    )
+    column = _column(drift, "grade")
+    assert column["new_labels"] == ["D"]
+    assert column["vanished_labels"] == ["C"]
+    table = np.array([[500, 300, 200, 0], [300, 300, 0, 150]])  # labels A, B, C, D
+    # Reference: scipy.stats.chi2_contingency (test of homogeneity of the two deliveries).
+    assert column["chi2_p_value"] == pytest.approx(
+        stats.chi2_contingency(table, correction=False).pvalue, rel=1e-9, abs=1e-300
+    )
+    # Reference: scipy.spatial.distance.jensenshannon, base 2.
+    assert column["js_distance"] == pytest.approx(
+        jensenshannon(table[0], table[1], base=2), abs=1e-12
+    )
+    flags = [f for f in drift["flags"] if f["code"] == "stability.distribution-shift"]
+    assert "new labels 'D'" in flags[0]["message"]
+
+
+def test_rename_is_found_by_the_distribution() -> None:
+    rng = _rng()
+    weights = rng.normal(18, 2, 2000).tolist()
+    base = profile_of(
+        [numeric_column("weight_kg", weights), label_column("dock", ["n", "s"] * 1000)]
+    )
+    target = profile_of(
+        [numeric_column("gross_kg", rng.normal(18, 2, 2000).tolist()),
+         label_column("dock", ["n", "s"] * 1000)]
+    )  # fmt: skip
+    drift = compare_profiles(base, target, thresholds=T)
+    assert drift["schema"]["added"] == [] and drift["schema"]["removed"] == []
+    (rename,) = drift["schema"]["renamed"]
+    assert (rename["from"], rename["to"]) == ("weight_kg", "gross_kg")
+    assert rename["evidence"]["ks"] < T.rename_max_distance
+    assert _column(drift, "gross_kg")["renamed_from"] == "weight_kg"
+
+
+def test_different_distributions_are_not_taken_for_a_rename() -> None:
+    rng = _rng()
+    base = profile_of([numeric_column("weight_kg", rng.normal(18, 2, 2000).tolist())])
+    target = profile_of([numeric_column("length_cm", rng.normal(60, 5, 2000).tolist())])
+    schema = compare_profiles(base, target, thresholds=T)["schema"]
+    assert schema["renamed"] == []
+    assert schema["removed"] == ["weight_kg"] and schema["added"] == ["length_cm"]
+
+
+def test_kind_change_and_missing_share_change() -> None:
+    base = profile_of([numeric_column("batch", [float(i % 7) for i in range(100)])])
+    target_column = label_column("batch", [f"B{i % 7}" for i in range(80)] + [None] * 20)
+    drift = compare_profiles(base, profile_of([target_column]), thresholds=T)
+    assert drift["schema"]["kind_changed"] == [
+        {"name": "batch", "from": "numeric", "to": "categorical"}
+    ]
+    assert _column(drift, "batch")["missing_share_change"] == pytest.approx(0.2)
+    assert any(
+        f["evidence"].get("change") == "kind" and f["severity"] == "critical"
+        for f in drift["flags"]
+    )
+
+
+def test_drift_document_has_the_design_fields_and_is_json() -> None:
+    base = profile_of([numeric_column("x", [1.0, 2.0, 3.0, 4.0])], name="march.csv")
+    target = profile_of([numeric_column("x", [1.0, 2.0, 3.0, 5.0, 6.0, 7.0])], name="april.csv")
+    drift = json.loads(json.dumps(compare_profiles(base, target, thresholds=T)))
+    assert set(drift) == {"baseline", "target", "schema", "volume", "columns", "flags"}
+    assert drift["baseline"]["name"] == "march.csv" and drift["target"]["rows"] == 6
+    assert set(drift["schema"]) == {"added", "removed", "renamed", "kind_changed"}
+    assert drift["volume"] == {"rows_baseline": 4, "rows_target": 6, "ratio": 1.5}
+    expected = {"name", "kind", "psi", "ks", "mean_shift_sd", "missing_share_change",
+                "new_labels", "vanished_labels", "chi2_p_value", "js_distance"}  # fmt: skip
+    assert expected <= set(drift["columns"][0])
