@@ -1,0 +1,116 @@
+"""/api/v1/auth: signing in and out from a script or the pages' own code, and who am I.
+
+Scripts usually send an API token instead (``Authorization: Bearer``); this
+sign-in answers a session cookie and the CSRF token that must come with every
+change made under that cookie.
+"""
+
+from __future__ import annotations
+
+from fastapi import APIRouter, Request, Response
+from pydantic import BaseModel, Field
+
+from server.api.deps import CurrentUser, SessionDep, SettingsDep, SignedInUser
+from server.api.errors import ApiError
+from server.security.access import SESSION_COOKIE
+from server.security.csrf import csrf_token
+from server.security.sessions import clear_session_cookie, session_lifetime, set_session_cookie
+from server.security.signin import sign_in
+from server.store import accounts
+
+router = APIRouter(prefix="/auth", tags=["accounts"])
+
+
+class SignInIn(BaseModel):
+    """A name and password."""
+
+    name: str = Field(min_length=1, max_length=100)
+    password: str = Field(min_length=1, max_length=1000)
+
+
+class Me(BaseModel):
+    """The signed-in user."""
+
+    id: int | None
+    name: str
+    role: str
+    is_demo: bool
+    via: str
+    csrf_token: str | None = Field(
+        None, description="Send as X-CSRF-Token with every change made under the session cookie."
+    )
+
+
+def client_address(request: Request) -> str:
+    """The client's address as the server saw it (proxies' headers are not trusted)."""
+    return request.client.host if request.client else "unknown"
+
+
+@router.post("/sign-in", response_model=Me)
+def api_sign_in(
+    body: SignInIn, request: Request, response: Response, session: SessionDep, settings: SettingsDep
+) -> Me:
+    """Check the name and password; answer the session cookie and its CSRF token."""
+    outcome = sign_in(
+        session,
+        body.name,
+        body.password,
+        address=client_address(request),
+        security=settings.security,
+    )
+    if not outcome.ok:
+        session.commit()  # keep the failure: it counts towards the throttle
+        if outcome.retry_after is not None:
+            raise ApiError(
+                429,
+                outcome.message,
+                code="held",
+                retry_after_seconds=round(outcome.retry_after),
+            )
+        raise ApiError(401, outcome.message, code="not_signed_in")
+    user = outcome.user
+    secret = accounts.open_session(
+        session,
+        user,
+        lifetime=session_lifetime(settings.security),
+        address=client_address(request),
+    )
+    session.commit()
+    set_session_cookie(response, secret, settings.security)
+    return Me(
+        id=user.id,
+        name=user.name,
+        role=user.role,
+        is_demo=user.is_demo,
+        via="session",
+        csrf_token=csrf_token(secret),
+    )
+
+
+@router.post("/sign-out", status_code=204)
+def api_sign_out(
+    request: Request, session: SessionDep, settings: SettingsDep, user: SignedInUser
+) -> Response:
+    """End the current session."""
+    secret = request.cookies.get(SESSION_COOKIE)
+    if secret:
+        accounts.close_session(session, secret)
+        actor = session.get(accounts.User, user.id)
+        accounts.audit(session, "sign-out", actor=actor, address=client_address(request))
+        session.commit()
+    response = Response(status_code=204)
+    clear_session_cookie(response, settings.security)
+    return response
+
+
+@router.get("/me", response_model=Me)
+def me(user: CurrentUser) -> Me:
+    """Who the credentials of this request belong to."""
+    return Me(
+        id=user.id,
+        name=user.name,
+        role=user.role,
+        is_demo=user.is_demo,
+        via=user.via,
+        csrf_token=user.csrf_token,
+    )
