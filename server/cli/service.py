@@ -9,6 +9,7 @@ from server.settings import get_settings
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     """Add the service subcommands."""
+    _register_running(subparsers)
     db = subparsers.add_parser("db", help="migrate the database schema")
     db_commands = db.add_subparsers(dest="db_command", required=True, metavar="ACTION")
     up = db_commands.add_parser("upgrade", help="migrate up (to the newest schema by default)")
@@ -44,3 +45,91 @@ def _safe_url(url: str) -> str:
     from sqlalchemy.engine import make_url
 
     return make_url(url).render_as_string(hide_password=True)
+
+
+def _serve(args: argparse.Namespace) -> int:
+    import uvicorn
+
+    from server.app import create_app
+
+    settings = get_settings()
+    host = args.host or settings.host
+    port = args.port or settings.port
+    print(f"Tidewaiter is serving on http://{host}:{port}/ (API docs at /docs)")
+    print("No sign-in yet: every visitor acts as the anonymous reviewer.")
+    uvicorn.run(create_app(settings), host=host, port=port, log_level=args.log_level)
+    return 0
+
+
+def _worker(args: argparse.Namespace) -> int:
+    from worker.jobs.celery_app import QUEUE, celery_for
+
+    settings = get_settings()
+    if settings.job_runner != "celery":
+        print(
+            "note: TIDEWAITER_JOB_RUNNER is not 'celery', so servers with these settings "
+            "profile files themselves and send this worker nothing"
+        )
+    concurrency = args.concurrency or settings.worker_concurrency
+    celery_for(settings).worker_main(
+        [
+            "worker",
+            f"--queues={QUEUE}",
+            f"--concurrency={concurrency}",
+            f"--loglevel={args.log_level.upper()}",
+            "--without-gossip",
+            "--without-mingle",
+            "--hostname=tidewaiter@%h",
+        ]
+    )
+    return 0
+
+
+def _sweep(args: argparse.Namespace) -> int:
+    import time
+
+    from worker.jobs.sweeper import sweep
+
+    settings = get_settings()
+    while True:
+        result = sweep(settings)
+        print(f"sweep: requeued {result.requeued or 'none'}, gave up on {result.failed or 'none'}")
+        if not args.loop:
+            return 0
+        time.sleep(settings.sweeper_interval_seconds)
+
+
+def _demo_load(args: argparse.Namespace) -> int:
+    from server.demo import load_demo
+
+    result = load_demo(get_settings())
+    for intake_id, status in result.statuses.items():
+        print(f"intake {intake_id}: {status}")
+    if result.skipped:
+        print(f"already loaded, skipped: {', '.join(result.skipped)}")
+    failed = [i for i, status in result.statuses.items() if status == "failed"]
+    return 1 if failed else 0
+
+
+def _register_running(subparsers: argparse._SubParsersAction) -> None:
+    serve = subparsers.add_parser("serve", help="serve the web app and the API")
+    serve.add_argument("--host", help="address to listen on (default: the host setting)")
+    serve.add_argument("--port", type=int, help="port to listen on (default: the port setting)")
+    serve.add_argument("--log-level", default="info")
+    serve.set_defaults(handler=_serve)
+
+    worker = subparsers.add_parser("worker", help="run a Celery worker that profiles intakes")
+    worker.add_argument("--concurrency", type=int, help="processes (default: the setting)")
+    worker.add_argument("--log-level", default="info")
+    worker.set_defaults(handler=_worker)
+
+    sweep = subparsers.add_parser(
+        "sweep", help="enqueue intakes stuck in queued or profiling again"
+    )
+    sweep.add_argument("--loop", action="store_true", help="sweep every sweeper interval")
+    sweep.set_defaults(handler=_sweep)
+
+    demo = subparsers.add_parser("demo", help="the invented demo scenario")
+    demo_commands = demo.add_subparsers(dest="demo_command", required=True, metavar="ACTION")
+    load = demo_commands.add_parser("load", help="load the demo suppliers and deliveries")
+    load.set_defaults(handler=_demo_load)
