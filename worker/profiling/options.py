@@ -149,7 +149,8 @@ class ProfileOptions(BaseModel):
     batch_rows: int = Field(
         65_536,
         ge=1,
-        description="Rows per batch for the Excel, JSON Lines and Parquet readers (common practice).",
+        description="Rows per batch of the Excel, JSON Lines and Parquet readers "
+        "(common practice).",
     )
     decompressed_limit_bytes: int = Field(
         20 * 1024**3,

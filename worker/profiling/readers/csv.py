@@ -1,0 +1,217 @@
+"""Delimited text (CSV, semicolon, tab or pipe separated), read in streamed batches.
+
+pyarrow's streaming CSV reader parses in native code, block by block, with
+every column read as text: an empty cell is null, every other cell keeps its
+raw text (no trimming, no number parsing; the column steps do that with the
+decimal mark and thousands separator found here). Rows with the wrong number
+of fields are skipped and reported with their line number.
+"""
+
+from __future__ import annotations
+
+import io
+from collections.abc import Iterator
+from pathlib import Path
+from typing import Any
+
+import pyarrow as pa
+import pyarrow.csv as pacsv
+
+from worker.profiling.errors import ProfileError
+from worker.profiling.options import ProfileOptions
+from worker.profiling.readers.compressed import GuardedStream, open_decompressed
+from worker.profiling.readers.encoding import arrow_encoding, decode_sample, detect_encoding
+from worker.profiling.readers.names import numbered_names, unique_names
+from worker.profiling.readers.sniff import sniff_dialect, split_records
+from worker.profiling.readers.source import SourceInfo, TableSource
+
+_FIXED_LINE = -1  # marker: the error's line is already a physical line number
+
+
+class CsvSource(TableSource):
+    """A delimited text file, plain or compressed, in any detected encoding."""
+
+    def __init__(
+        self,
+        path: Path,
+        options: ProfileOptions,
+        *,
+        head: bytes,
+        complete: bool,
+        compression: str | None = None,
+        tail: bytes = b"",
+    ) -> None:
+        super().__init__(path, options.parse_error_limit)
+        self._options = options
+        self._compression = compression
+        self._stream: GuardedStream | None = None
+        self._rows_read = 0
+        self._pending: list[tuple[int | None, str, str]] = []
+        encoding = _encoding_of(head, tail)
+        text = decode_sample(head, encoding).lstrip("\ufeff")
+        dialect = sniff_dialect(text, complete=complete)
+        lines = [line for line in text.splitlines()[:50] if line.strip()]
+        if not complete and len(lines) > 1:
+            lines = lines[:-1]
+        records = split_records(lines, dialect.delimiter, dialect.quotechar)
+        if dialect.header:
+            self.column_names, fixes = unique_names(records[0])
+            for fix in fixes:
+                self._errors.add(1, fix)
+        else:
+            widths = [len(row) for row in records] or [1]
+            self.column_names = numbered_names(max(set(widths), key=widths.count))
+        self.info = SourceInfo(
+            format="csv",
+            encoding=encoding,
+            delimiter=dialect.delimiter,
+            quotechar=dialect.quotechar,
+            header=dialect.header,
+            decimal=dialect.decimal,
+            thousands=dialect.thousands,
+            compression=compression,
+        )
+        # Bytes on disk per byte of decoded text, for the progress estimate.
+        decoded = len(text.encode("utf-8")) or 1
+        self._bytes_per_text_byte = len(head) / decoded if encoding not in ("utf-8",) else 1.0
+
+    def _open(self) -> Any:
+        """What pyarrow reads: the path itself, or a guarded decompressing stream."""
+        if self._compression is None:
+            return str(self.path)
+        self._stream = open_decompressed(self.path, self._compression, self._options)
+        return pa.PythonFile(self._stream, mode="r")
+
+    def _on_invalid_row(self, row: pacsv.InvalidRow) -> str:
+        message = f"the row has {row.actual_columns} fields where {row.expected_columns} belong"
+        if len(self._pending) < self._errors.limit:
+            self._pending.append((row.number, row.text, message))
+        else:
+            self._errors.count += 1
+        return "skip"
+
+    def batches(self) -> Iterator[pa.RecordBatch]:
+        names = self.column_names
+        read_options = pacsv.ReadOptions(
+            use_threads=False,
+            block_size=self._options.csv_block_bytes,
+            skip_rows=1 if self.info.header else 0,
+            column_names=names,
+            encoding=arrow_encoding(self.info.encoding or "utf-8"),
+        )
+        parse_options = pacsv.ParseOptions(
+            delimiter=self.info.delimiter or ",",
+            quote_char=self.info.quotechar or False,
+            double_quote=True,
+            newlines_in_values=True,
+            invalid_row_handler=self._on_invalid_row,
+        )
+        convert_options = pacsv.ConvertOptions(
+            column_types={name: pa.string() for name in names},
+            strings_can_be_null=True,
+            quoted_strings_can_be_null=True,
+            null_values=[""],
+        )
+        try:
+            reader = pacsv.open_csv(
+                self._open(),
+                read_options=read_options,
+                parse_options=parse_options,
+                convert_options=convert_options,
+            )
+            for batch in reader:
+                self._rows_read += batch.num_rows
+                self._count_consumed(batch)
+                yield batch
+        except ProfileError:
+            raise
+        except (pa.ArrowException, OSError, UnicodeDecodeError) as exc:
+            raise self._fatal(exc) from exc
+        finally:
+            self.close()
+        self._consumed = self.total_bytes
+        self._settle_errors()
+
+    def _count_consumed(self, batch: pa.RecordBatch) -> None:
+        """Estimate the file bytes behind the rows handed out so far (for progress)."""
+        # A string column's buffers hold its text plus 4 offset bytes per row.
+        text_bytes = batch.num_rows * batch.num_columns
+        text_bytes += sum(column.nbytes - 4 * len(column) for column in batch.columns)
+        scale = self._bytes_per_text_byte
+        if self._stream is not None and self._stream.produced:
+            scale *= self._stream.compressed_bytes_read() / self._stream.produced
+        self._consumed += int(text_bytes * scale)
+
+    def _fatal(self, exc: BaseException) -> ProfileError:
+        """The plain reason why reading cannot go on, with the stream's own refusal first."""
+        if self._stream is not None and self._stream.refusal is not None:
+            return self._stream.refusal
+        cause: BaseException | None = exc
+        while cause is not None:
+            if isinstance(cause, ProfileError):
+                return cause
+            cause = cause.__cause__ or cause.__context__
+        reason = str(exc).split("\n")[0]
+        if "invalid UTF8" in reason or isinstance(exc, UnicodeDecodeError):
+            reason = f"its text is not valid {self.info.encoding} throughout"
+        return ProfileError(f"the file cannot be read past row {self._rows_read + 1}: {reason}")
+
+    def _settle_errors(self) -> None:
+        """Turn pyarrow's record numbers into physical line numbers and keep the errors.
+
+        pyarrow numbers a broken row by counting records, skipping empty lines
+        and counting a quoted value over several lines once, so its number can
+        be lower than the line an editor shows. The physical line is found by
+        reading the decoded text up to the last kept error, only when there are
+        errors to place.
+        """
+        pending = sorted(self._pending, key=lambda item: item[0] or 0)
+        if pending and all(number is not None for number, _, _ in pending):
+            located = self._physical_lines(pending)
+        else:
+            located = [number for number, _, _ in pending]
+        for line, (_, _, message) in zip(located, pending, strict=True):
+            self._errors.add(line, message)
+
+    def _physical_lines(self, pending: list[tuple[int | None, str, str]]) -> list[int | None]:
+        lines: list[int | None] = [number for number, _, _ in pending]
+        if self._compression:
+            stream: Any = io.BufferedReader(
+                open_decompressed(self.path, self._compression, self._options)
+            )
+        else:
+            stream = open(self.path, "rb")  # noqa: SIM115 (closed below)
+        encoding = self.info.encoding or "utf-8"
+        try:
+            text = io.TextIOWrapper(stream, encoding=encoding, errors="replace", newline=None)
+            wanted = 0
+            for line_number, line in enumerate(text, start=1):
+                number, row_text, _ = pending[wanted]
+                first_line = row_text.split("\n")[0].rstrip("\r")
+                if line_number >= (number or 0) and line.rstrip("\n").lstrip("\ufeff") == (
+                    first_line
+                ):
+                    lines[wanted] = line_number
+                    wanted += 1
+                    if wanted == len(pending):
+                        break
+        except (ProfileError, OSError, UnicodeDecodeError):
+            pass
+        finally:
+            stream.close()
+        return lines
+
+    def close(self) -> None:
+        if self._stream is not None:
+            self._stream.close()
+            self._stream = None
+
+
+def _encoding_of(head: bytes, tail: bytes) -> str:
+    """The encoding from the head, unless the tail shows UTF-8 was only a good start."""
+    encoding = detect_encoding(head)
+    if encoding == "utf-8" and tail:
+        tail = tail.lstrip(bytes(range(0x80, 0xC0)))
+        if detect_encoding(tail) != "utf-8":
+            return detect_encoding(head + b"\n" + tail)
+    return encoding
