@@ -8,6 +8,7 @@ states are finalized into the profile document of the design notes.
 
 from __future__ import annotations
 
+import copy
 import hashlib
 import os
 import threading
@@ -84,18 +85,27 @@ def profile_file(
 class TableProfiler:
     """The states of one table: per column, across columns and duplicate rows; mergeable."""
 
-    def __init__(self, column_names: list[str], options: ProfileOptions, info: Any) -> None:
+    def __init__(
+        self,
+        column_names: list[str],
+        options: ProfileOptions,
+        info: Any,
+        *,
+        first_row: int = 0,
+        now: float | None = None,
+    ) -> None:
         self.options = options
         self.column_names = list(column_names)
         self.decimal = getattr(info, "decimal", ".") or "."
         self.thousands = getattr(info, "thousands", None)
-        now = time.time()
+        now = time.time() if now is None else now
         self.columns = {
             name: ColumnState(name, position, options, now=now)
             for position, name in enumerate(self.column_names)
         }
         self.relations: RelationsState | None = None
         self.duplicates = DuplicateState(self.column_names, options)
+        self.first_row = first_row
         self.rows = 0
         self._plan = self._make_plan()
 
@@ -114,7 +124,7 @@ class TableProfiler:
         """Add the next batch of rows (in table order)."""
         if raw.num_rows == 0:
             return
-        prepared = prepare_batch(raw, self.rows, self._plan)
+        prepared = prepare_batch(raw, self.first_row + self.rows, self._plan)
         undecided = [c for c in self.columns.values() if c.candidates is None]
         decided = False
         for state in undecided:
@@ -130,7 +140,7 @@ class TableProfiler:
                 decided = True
         if decided:
             self._plan = self._make_plan()
-            prepared = prepare_batch(raw, self.rows, self._plan)
+            prepared = prepare_batch(raw, self.first_row + self.rows, self._plan)
         if self.relations is None:
             self.relations = RelationsState(
                 self._relation_numeric(), self._relation_labels(), self.options
@@ -140,6 +150,20 @@ class TableProfiler:
         self.relations.update(prepared)
         self.duplicates.update(prepared)
         self.rows += raw.num_rows
+
+    def merge(self, other: TableProfiler) -> TableProfiler:
+        """Combine with a profiler of the rows that follow this one's (neither is changed)."""
+        out = copy.copy(self)
+        out.columns = {
+            name: state.merge(other.columns[name]) for name, state in self.columns.items()
+        }
+        if self.relations is not None and other.relations is not None:
+            out.relations = self.relations.merge(other.relations)
+        else:
+            out.relations = self.relations or other.relations
+        out.duplicates = self.duplicates.merge(other.duplicates)
+        out.rows = self.rows + other.rows
+        return out
 
     def _relation_numeric(self) -> list[str]:
         return [

@@ -4,7 +4,8 @@ Suppliers often write a code such as -999 or 9999 where a value is unknown.
 The candidates are a configurable list of such codes plus zero. A code is
 suspected when it stands apart from the bulk of the other values: outside
 their far-out Tukey fences (3 × IQR; J. W. Tukey, Exploratory Data Analysis,
-1977), or negative where every other value is at least zero. Zero is suspected
+1977), beyond the range of the other values by at least their IQR, or negative
+where every other value is at least zero. Zero is suspected
 when it is a spike: at least ``zero_share`` of the values are zero while
 almost no other values lie within one Freedman–Diaconis bin width of zero
 (D. Freedman and P. Diaconis, Z. Wahrscheinlichkeitstheorie 57, 1981). The
@@ -63,17 +64,23 @@ def suspected_sentinels(
     q1, q3 = np.quantile(others, [0.25, 0.75])
     iqr = q3 - q1
     low, high = q1 - 3.0 * iqr, q3 + 3.0 * iqr
-    all_non_negative = bool(others.min() >= 0)
+    lowest, highest = float(others.min()), float(others.max())
+    all_non_negative = lowest >= 0
+    integers = bool(np.array_equal(others, np.trunc(others)))
     for code in codes.tolist():
         count = present[code]
         if code == 0.0:
             width = 2.0 * iqr / others.size ** (1.0 / 3.0) if iqr > 0 else 0.0
+            if integers:
+                width = max(width, 1.0)  # whole numbers cannot come nearer than 1
             near = np.count_nonzero(np.abs(others) <= width) / others.size
             share = count / total
             apart = code < low or code > high or near < 0.1 * share
             if share >= zero_share and apart:
                 found.append({"value": 0.0, "count": count})
             continue
-        if code < low or code > high or (code < 0 and all_non_negative):
+        gap = max(lowest - code, code - highest)
+        beyond_range = gap >= max(iqr, 1e-12)
+        if code < low or code > high or beyond_range or (code < 0 and all_non_negative):
             found.append({"value": code, "count": count})
     return found

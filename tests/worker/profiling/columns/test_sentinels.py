@@ -1,0 +1,35 @@
+"""Disguised missing values planted in numeric columns (truth by construction)."""
+
+import numpy as np
+
+from worker.profiling.columns.numeric import NumericState
+from worker.profiling.options import ProfileOptions
+
+
+def _sentinels(values):
+    state = NumericState(ProfileOptions())
+    state.update(np.asarray(values, dtype=float))
+    return state.finalize()[1]
+
+
+def test_minus_999_in_a_positive_column():
+    rng = np.random.default_rng(9)
+    values = np.concatenate([rng.uniform(20, 80, 500), [-999.0] * 12])
+    assert _sentinels(values) == [{"value": -999.0, "count": 12}]
+
+
+def test_9999_far_above_the_bulk_and_999_inside_it_is_not_flagged():
+    rng = np.random.default_rng(10)
+    values = np.concatenate([rng.uniform(100, 5_000, 500), [999.0] * 3, [9999.0] * 4])
+    assert _sentinels(values) == [{"value": 9999.0, "count": 4}]
+
+
+def test_spike_of_zeros_apart_from_the_bulk():
+    rng = np.random.default_rng(11)
+    values = np.concatenate([rng.normal(50_000, 8_000, 900), np.zeros(100)])
+    assert _sentinels(values) == [{"value": 0.0, "count": 100}]
+
+
+def test_zeros_of_a_count_column_are_not_a_spike():
+    values = np.random.default_rng(12).poisson(1.5, size=1_000).astype(float)
+    assert _sentinels(values) == []
