@@ -52,17 +52,23 @@ def crosstab_statistics(
     a_labels: Sequence[str],
     b_labels: Sequence[str],
     table: np.ndarray,
+    *,
+    sort_labels: bool = True,
 ) -> dict[str, Any] | None:
     """The crosstab document of a pair, or None when the table is not at least 2×2.
 
-    Labels are put in text order, so the same pair reads the same in every
-    intake. Labels of a (rows) and of b (columns) that never occur together with a
-    label of the other column are left out first, since their expected counts
-    are zero and the test is undefined for them.
+    Labels are put in text order (unless ``sort_labels`` is False), so the
+    same pair reads the same in every intake. Labels of a (rows) and of b
+    (columns) that never occur together with a label of the other column are
+    left out first, since their expected counts are zero and the test is
+    undefined for them.
     """
     table = np.asarray(table, dtype=np.int64)
-    row_order = np.argsort(np.asarray(a_labels, dtype=object), kind="stable")
-    col_order = np.argsort(np.asarray(b_labels, dtype=object), kind="stable")
+    if not sort_labels:
+        row_order, col_order = np.arange(len(a_labels)), np.arange(len(b_labels))
+    else:
+        row_order = np.argsort(np.asarray(a_labels, dtype=object), kind="stable")
+        col_order = np.argsort(np.asarray(b_labels, dtype=object), kind="stable")
     table = table[row_order][:, col_order]
     a_labels = [a_labels[i] for i in row_order]
     b_labels = [b_labels[i] for i in col_order]

@@ -1,0 +1,262 @@
+"""On-demand questions over an intake's columnar copy (see ``worker.profiling.columnar``).
+
+Pure functions of a Parquet path: a crosstab of two label columns, the label
+counts of one column, sample rows and one column's values, each optionally
+within a filter ``where`` ({column: label}, all must hold; None as a label
+means "missing"). Only the columns a question needs are read, and labels are
+cleaned exactly as the engine cleans them (``worker.profiling.prepared``:
+trimmed, and null when blank or a missing token), so "Female " and "Female"
+are one label here as in the profile. The crosstab's statistics are the
+profile's own (``worker.profiling.relations.crosstab``).
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Mapping
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+import pyarrow.parquet as pq
+
+from worker.profiling.options import ProfileOptions
+from worker.profiling.prepared import BatchPlan, prepare_batch
+from worker.profiling.relations.crosstab import crosstab_statistics
+
+Where = Mapping[str, str | None] | None
+OTHER_LABEL = "(other labels)"
+
+
+class QueryError(ValueError):
+    """A question that cannot be answered (no copy, unknown column); the message says why."""
+
+
+def _open(path: str | os.PathLike[str]) -> pq.ParquetFile:
+    try:
+        return pq.ParquetFile(Path(path))
+    except (FileNotFoundError, OSError, pa.ArrowInvalid) as exc:
+        raise QueryError("the intake has no readable columnar copy") from exc
+
+
+def _check_columns(file: pq.ParquetFile, names: list[str]) -> None:
+    known = set(file.schema_arrow.names)
+    unknown = [name for name in names if name not in known]
+    if unknown:
+        raise QueryError(f"no column named {', '.join(repr(n) for n in unknown)}")
+
+
+def _clean(table: pa.Table, names: list[str], options: ProfileOptions) -> dict[str, pa.Array]:
+    """Labels of ``names`` as the engine prepares them: trimmed, null where missing."""
+    plan = BatchPlan(
+        numeric=frozenset(), labels=frozenset(names), missing_tokens=tuple(options.missing_tokens)
+    )
+    parts: dict[str, list[pa.Array]] = {name: [] for name in names}
+    for batch in table.select(names).to_batches():
+        prepared = prepare_batch(batch, 0, plan)
+        for name in names:
+            parts[name].append(prepared.labels[name])
+    return {
+        name: pa.concat_arrays(chunks) if chunks else pa.array([], pa.string())
+        for name, chunks in parts.items()
+    }
+
+
+def _read(
+    path: str | os.PathLike[str],
+    labels_of: list[str],
+    where: Where,
+    options: ProfileOptions,
+) -> tuple[pq.ParquetFile, dict[str, pa.Array], np.ndarray | None]:
+    """The file, the cleaned labels of ``labels_of`` and of the filter columns, the row mask."""
+    file = _open(path)
+    where = dict(where or {})
+    needed = list(dict.fromkeys([*labels_of, *where]))
+    _check_columns(file, needed)
+    labels = _clean(file.read(columns=needed), needed, options) if needed else {}
+    mask = None
+    for name, value in where.items():
+        column = labels[name]
+        if value is None:
+            hit = pc.is_null(column)
+        else:
+            hit = pc.fill_null(pc.equal(column, pa.scalar(str(value).strip())), False)
+        hit_np = hit.to_numpy(zero_copy_only=False)
+        mask = hit_np if mask is None else (mask & hit_np)
+    return file, labels, mask
+
+
+def _take_rows(file: pq.ParquetFile, rows: np.ndarray, columns: list[str]) -> pa.Table:
+    """The given rows (ascending row numbers) of ``columns``, reading only their row groups."""
+    sizes = [file.metadata.row_group(i).num_rows for i in range(file.num_row_groups)]
+    starts = np.concatenate([[0], np.cumsum(sizes)]).astype(np.int64)
+    groups = np.unique(np.searchsorted(starts, rows, side="right") - 1)
+    if len(groups) == 0:
+        return file.schema_arrow.empty_table().select(columns)
+    table = file.read_row_groups([int(g) for g in groups], columns=columns)
+    local_starts = np.concatenate([[0], np.cumsum([sizes[g] for g in groups])])
+    group_of = np.searchsorted(starts, rows, side="right") - 1
+    position = np.searchsorted(groups, group_of)
+    local = local_starts[position] + (rows - starts[group_of])
+    return table.take(pa.array(local))
+
+
+def _filtered(array: pa.Array, mask: np.ndarray | None) -> pa.Array:
+    return array if mask is None else array.filter(pa.array(mask))
+
+
+def _counts(array: pa.Array) -> list[tuple[str, int]]:
+    """(label, count) of the non-missing labels, most frequent first, then by label."""
+    counted = pc.value_counts(array.drop_null())
+    pairs = list(
+        zip(counted.field("values").to_pylist(), counted.field("counts").to_pylist(), strict=True)
+    )
+    pairs.sort(key=lambda item: (-item[1], item[0]))
+    return pairs
+
+
+def label_counts(
+    path: str | os.PathLike[str],
+    column: str,
+    where: Where = None,
+    *,
+    limit: int = 100,
+    options: ProfileOptions | None = None,
+) -> list[dict[str, Any]]:
+    """Counts and shares of a column's labels among the rows matching ``where``.
+
+    Most frequent first; at most ``limit`` labels, then one entry
+    "(other labels)" for the rest; missing cells last as ``value`` None.
+    Shares are of the matching rows, missing ones included.
+    """
+    options = options or ProfileOptions()
+    _, labels, mask = _read(path, [column], where, options)
+    values = _filtered(labels[column], mask)
+    total = len(values)
+    counted = _counts(values)
+    out = [
+        {"value": value, "count": count, "share": count / total} for value, count in counted[:limit]
+    ]
+    rest = sum(count for _, count in counted[limit:])
+    if rest:
+        out.append({"value": OTHER_LABEL, "count": rest, "share": rest / total, "other": True})
+    if values.null_count:
+        out.append({"value": None, "count": values.null_count, "share": values.null_count / total})
+    return out
+
+
+def crosstab(
+    path: str | os.PathLike[str],
+    a: str,
+    b: str,
+    where: Where = None,
+    *,
+    max_labels: int = 30,
+    options: ProfileOptions | None = None,
+) -> dict[str, Any]:
+    """The crosstab of label columns ``a`` (rows) and ``b`` (columns) within ``where``.
+
+    Rows missing either label are left out. When a column has more than
+    ``max_labels`` labels, the most frequent are kept and the rest folded into
+    "(other labels)" (``folded`` says which sides were). The statistics are
+    those of the profile's crosstabs; they are None when fewer than two labels
+    remain on a side.
+    """
+    if a == b:
+        raise QueryError("a crosstab needs two different columns")
+    options = options or ProfileOptions()
+    _, labels, mask = _read(path, [a, b], where, options)
+    col_a, col_b = _filtered(labels[a], mask), _filtered(labels[b], mask)
+    both = pc.and_(pc.is_valid(col_a), pc.is_valid(col_b))
+    col_a, col_b = col_a.filter(both), col_b.filter(both)
+    folded = []
+    sides = []
+    for name, column in ((a, col_a), (b, col_b)):
+        counted = _counts(column)
+        kept = sorted(label for label, _ in counted[:max_labels])
+        if len(counted) > max_labels:
+            folded.append(name)
+            kept.append(OTHER_LABEL)
+        sides.append(kept)
+    codes = []
+    for column, kept in zip((col_a, col_b), sides, strict=True):
+        index = pc.index_in(column, value_set=pa.array(kept, pa.string()))
+        other = len(kept) - 1
+        codes.append(pc.fill_null(index, other).to_numpy(zero_copy_only=False).astype(np.int64))
+    size_a, size_b = len(sides[0]), len(sides[1])
+    table = np.bincount(codes[0] * size_b + codes[1], minlength=size_a * size_b)
+    table = table.reshape(size_a, size_b)
+    doc = crosstab_statistics(a, b, sides[0], sides[1], table, sort_labels=False)
+    if doc is None:
+        doc = {
+            "a": a,
+            "b": b,
+            "n": int(table.sum()),
+            "counts": {"a_labels": sides[0], "b_labels": sides[1], "matrix": table.tolist()},
+            "row_shares": None,
+            "chi2": None,
+            "dof": None,
+            "p_value": None,
+            "residuals": None,
+            "cochran_ok": None,
+        }
+    doc["where"] = dict(where or {})
+    doc["folded"] = folded
+    return doc
+
+
+def sample_rows(
+    path: str | os.PathLike[str],
+    n: int,
+    where: Where = None,
+    *,
+    seed: int = 0,
+    options: ProfileOptions | None = None,
+) -> list[dict[str, Any]]:
+    """Up to ``n`` rows drawn uniformly (seeded) among those matching ``where``, in row order.
+
+    Each row is {"row": its 0-based row number, "values": {column: raw cell}}: the
+    cells as delivered, untrimmed, so a person sees what the supplier sent.
+    """
+    options = options or ProfileOptions()
+    file, _, mask = _read(path, [], where, options)
+    candidates = np.arange(file.metadata.num_rows) if mask is None else np.flatnonzero(mask)
+    if len(candidates) > n:
+        chosen = np.sort(np.random.default_rng(seed).choice(candidates, n, replace=False))
+    else:
+        chosen = candidates
+    records = _take_rows(file, chosen, file.schema_arrow.names).to_pylist()
+    return [
+        {"row": int(row), "values": record} for row, record in zip(chosen, records, strict=True)
+    ]
+
+
+def column_values(
+    path: str | os.PathLike[str],
+    column: str,
+    limit: int = 100,
+    *,
+    offset: int = 0,
+    where: Where = None,
+    options: ProfileOptions | None = None,
+) -> dict[str, Any]:
+    """One column's raw cells in row order: ``limit`` of them from the ``offset``-th match.
+
+    Returns {"column", "total" (matching rows), "offset", "rows" (0-based row numbers),
+    "values" (raw cells, None for an empty cell)}.
+    """
+    options = options or ProfileOptions()
+    file, _, mask = _read(path, [], where, options)
+    _check_columns(file, [column])
+    rows = np.arange(file.metadata.num_rows) if mask is None else np.flatnonzero(mask)
+    page = rows[offset : offset + limit]
+    values = _take_rows(file, page, [column]).column(column).to_pylist()
+    return {
+        "column": column,
+        "total": len(rows),
+        "offset": offset,
+        "rows": [int(r) for r in page],
+        "values": values,
+    }
