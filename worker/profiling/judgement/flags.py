@@ -744,7 +744,15 @@ def _schema_change(drift: dict[str, Any], t: FlagThresholds) -> list[Flag]:
 
 def _shift_reasons(column: dict[str, Any], t: FlagThresholds) -> list[str]:
     reasons = []
-    if column.get("psi") is not None and column["psi"] >= t.psi_warning:
+    # PSI of small samples is noisy (about (bins - 1)·(1/n_b + 1/n_t) by chance alone), so it
+    # counts only when the column's test (KS or chi-square) also says the move is not chance.
+    test_p = column.get("ks_p_value", column.get("chi2_p_value"))
+    alpha = t.ks_p_value if "ks_p_value" in column else t.chi2_p_value
+    if (
+        column.get("psi") is not None
+        and column["psi"] >= t.psi_warning
+        and (test_p is None or test_p < alpha)
+    ):
         reasons.append(f"PSI {column['psi']:.3f}")
     ks, p = column.get("ks"), column.get("ks_p_value")
     if ks is not None and ks >= t.ks_statistic and (p is None or p < t.ks_p_value):
