@@ -10,9 +10,9 @@ import argparse
 import sys
 from collections.abc import Sequence
 
-from server.cli import engine, service
+from server.cli import compare, engine, service
 
-COMMAND_GROUPS = (service, engine)
+COMMAND_GROUPS = (service, engine, compare)
 
 
 def build_parser() -> argparse.ArgumentParser:
