@@ -7,9 +7,10 @@ from contextlib import asynccontextmanager
 
 from fastapi import FastAPI
 
-from server.api import api_router, health_router
+from server.api import account_router, api_router, health_router
 from server.api.errors import install_error_handlers
 from server.pages import install_pages
+from server.security.setup import install_security
 from server.settings import Settings, get_settings
 from worker.jobs.lifecycle import start_background, stop_background
 
@@ -34,7 +35,9 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     )
     app.state.settings = settings
     install_error_handlers(app)
+    install_security(app, settings)
     app.include_router(health_router)
     app.include_router(api_router)
+    app.include_router(account_router)
     install_pages(app)
     return app

@@ -1,15 +1,28 @@
 """The HTTP API: one router per resource under ``/api/v1``, health at the root."""
 
-from fastapi import APIRouter
+from fastapi import APIRouter, Depends
 
-from server.api.routes import health, intakes, suppliers
+from server.api.deps import current_user
+from server.api.routes import audit, auth, health, intakes, privacy, suppliers, tokens, users
 
 API_PREFIX = "/api/v1"
 
-api_router = APIRouter(prefix=API_PREFIX)
+# Every router included here sits behind sign-in (``current_user``: writes need a reviewer);
+# admin routers add their own ``RequireAdmin``.
+api_router = APIRouter(prefix=API_PREFIX, dependencies=[Depends(current_user)])
 api_router.include_router(intakes.router)
 api_router.include_router(suppliers.router)
 
+api_router.include_router(users.router)
+api_router.include_router(audit.router)
+api_router.include_router(privacy.router)
+
+# Sign-in must be open and a viewer may sign out or manage their own tokens: these
+# routes take their caller from ``signed_in_user`` themselves.
+account_router = APIRouter(prefix=API_PREFIX)
+account_router.include_router(auth.router)
+account_router.include_router(tokens.router)
+
 health_router = health.router
 
-__all__ = ["API_PREFIX", "api_router", "health_router"]
+__all__ = ["API_PREFIX", "account_router", "api_router", "health_router"]

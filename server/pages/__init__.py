@@ -9,10 +9,12 @@ from __future__ import annotations
 from pathlib import Path
 
 import plotly
-from fastapi import FastAPI
+from fastapi import Depends, FastAPI
 from fastapi.responses import FileResponse
 from fastapi.staticfiles import StaticFiles
 
+from server.api.deps import current_user
+from server.pages.account import router as account_router
 from server.pages.intakes import router as intakes_router
 
 WEB_DIR = Path(__file__).resolve().parents[2] / "web"
@@ -31,5 +33,8 @@ def plotly_js() -> FileResponse:
 def install_pages(app: FastAPI) -> None:
     """Add the page routes and the static files to ``app``."""
     app.add_api_route("/static/vendor/plotly.min.js", plotly_js, include_in_schema=False)
-    app.include_router(intakes_router)
+    # Page routers sit behind sign-in (an anonymous browser is sent to /sign-in); the
+    # account pages (sign-in itself, sign-out, own tokens) check their callers themselves.
+    app.include_router(account_router)
+    app.include_router(intakes_router, dependencies=[Depends(current_user)])
     app.mount("/static", StaticFiles(directory=WEB_DIR / "static", check_dir=False), name="static")

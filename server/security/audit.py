@@ -18,8 +18,7 @@ from starlette.types import ASGIApp, Message, Receive, Scope, Send
 from server.security.csrf import SAFE_METHODS
 from server.store import accounts
 
-# Route path words → audit action, first match wins (the path template, e.g.
-# "/api/v1/intakes/{intake_id}/decisions").
+# Path words → audit action, first match wins (e.g. "/api/v1/intakes/3/decisions").
 ACTIONS: tuple[tuple[str, str], ...] = (
     ("/auth/", ""),  # sign-in and sign-out are recorded by the routes themselves
     ("/sign-in", ""),
@@ -73,7 +72,9 @@ class AuditMiddleware:
         route = scope.get("route")
         if user is None or route is None or not 200 <= status.get("code", 500) < 400:
             return
-        route_path = getattr(route, "path", scope.get("path", ""))
+        # The request's own path: routers are included under prefixes, so the matched
+        # route's template alone ("/{intake_id}/file") would lose the resource's name.
+        route_path = scope.get("path", "")
         action = action_for(scope["method"], route_path)
         if action is None:
             return
@@ -84,7 +85,7 @@ class AuditMiddleware:
             user,
             scope.get("path", ""),
             client[0] if client else None,
-            {"method": scope["method"], "route": route_path, "status": status["code"]},
+            {"method": scope["method"], "status": status["code"]},
         )
 
     def _record(

@@ -2,10 +2,16 @@
 
 from __future__ import annotations
 
+import warnings
+
 from starlette.applications import Starlette
 from starlette.responses import PlainTextResponse
 from starlette.routing import Route
-from starlette.testclient import TestClient
+
+with warnings.catch_warnings():
+    # Starlette's test client warns about its own httpx dependency, not about our code.
+    warnings.simplefilter("ignore")
+    from starlette.testclient import TestClient
 
 from server.security.headers import SecurityHeadersMiddleware
 
