@@ -152,7 +152,12 @@ class CsvSource(TableSource):
                 return cause
             cause = cause.__cause__ or cause.__context__
         reason = str(exc).split("\n")[0]
-        if "invalid UTF8" in reason or isinstance(exc, UnicodeDecodeError):
+        if "straddling" in reason:
+            reason = (
+                f"a row is longer than {self._options.csv_block_bytes:,} bytes "
+                "(a quote that is never closed?)"
+            )
+        elif "invalid UTF8" in reason or isinstance(exc, UnicodeDecodeError):
             reason = f"its text is not valid {self.info.encoding} throughout"
         return ProfileError(f"the file cannot be read past row {self._rows_read + 1}: {reason}")
 
