@@ -166,9 +166,13 @@ def disguised_missing(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
 def off_kind_count(column: dict[str, Any]) -> int:
     """How many non-missing values of a column do not fit its kind.
 
-    Read from ``off_kind`` (a count) or ``kind_counts`` (kind -> values that
-    look like that kind), whichever the profile gives.
+    Read from the engine's ``kind_evidence.mixed_kinds.other_share`` (times the
+    non-missing count), or from ``off_kind`` (a count) or ``kind_counts`` (kind ->
+    values that look like that kind), whichever the profile gives.
     """
+    mixed = (column.get("kind_evidence") or {}).get("mixed_kinds") or {}
+    if mixed.get("other_share") is not None:
+        return round(float(mixed["other_share"]) * int(column.get("count") or 0))
     if column.get("off_kind") is not None:
         return int(column["off_kind"])
     counts = column.get("kind_counts") or {}
@@ -188,7 +192,8 @@ def mixed_kinds(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
         if count == 0 or stray == 0 or stray / count < t.mixed_kinds_share:
             continue
         name, kind = column["name"], column.get("kind")
-        examples = column.get("off_kind_examples") or []
+        mixed = (column.get("kind_evidence") or {}).get("mixed_kinds") or {}
+        examples = mixed.get("examples") or column.get("off_kind_examples") or []
         shown = f" such as {', '.join(repr(e) for e in examples[:3])}" if examples else ""
         flags.append(
             make_flag(
@@ -202,7 +207,6 @@ def mixed_kinds(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
                     "off_kind": stray,
                     "count": count,
                     "share": stray / count,
-                    "kind_counts": column.get("kind_counts"),
                     "examples": examples[:5],
                     "threshold": t.mixed_kinds_share,
                 },
@@ -452,6 +456,12 @@ def _is_label_column(column: dict[str, Any]) -> bool:
     return column.get("kind") in LABEL_KINDS and bool(_top(column))
 
 
+def is_mostly_unique(column: dict[str, Any], t: FlagThresholds) -> bool:
+    """Nearly every value differs (a key or free text): label balance means nothing there."""
+    count, distinct = int(column.get("count") or 0), column.get("distinct")
+    return bool(count and distinct is not None and int(distinct) / count >= t.mostly_unique_share)
+
+
 def rare_label_items(column: dict[str, Any], share: float) -> list[dict[str, Any]]:
     """Labels of a column below ``share`` of its values, from its rare list and its top list."""
     count = int(column.get("count") or 0)
@@ -505,7 +515,7 @@ def rare_labels(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
     """Label columns with labels so rare that any statistic about them is shaky."""
     flags = []
     for column in _columns(profile):
-        if not _is_label_column(column):
+        if not _is_label_column(column) or is_mostly_unique(column, t):
             continue
         count = int(column.get("count") or 0)
         if count == 0:

@@ -12,7 +12,8 @@ nothing was found and any finding costs at least one point:
 - consistency: bad = cells of label columns written in a minority spelling of
   their label; checked = filled cells of label columns.
 - balance: bad = cells of the dominant label beyond the dominant share, plus
-  cells of rare labels; checked = filled cells of label columns.
+  cells of rare labels; checked = filled cells of label columns (columns whose
+  values nearly all differ are keys or free text and count as balanced).
 - stability (only with a baseline): bad = columns added, removed, renamed,
   changed kind or shifted in distribution; checked = columns of baseline and
   target together (each column has the same number of cells, so this is a
@@ -30,6 +31,7 @@ from typing import Any
 
 from worker.profiling.judgement.flags import (
     LABEL_KINDS,
+    is_mostly_unique,
     off_kind_count,
     rare_label_items,
     variant_cells,
@@ -162,6 +164,8 @@ def balance(profile: dict[str, Any], thresholds: FlagThresholds) -> tuple[int, s
     for column in columns:
         count = int(column.get("count") or 0)
         if count == 0 or int(column.get("distinct") or 0) < 2:
+            continue
+        if is_mostly_unique(column, thresholds):
             continue
         top = column["labels"]["top"]
         biggest = max(int(item["count"]) for item in top)
