@@ -164,7 +164,10 @@ def numeric_figure(column: dict[str, Any]) -> Figure | None:
                 box["boxmean"] = "sd"
         data.append(box)
     layout = base_layout(height=300)
-    layout["xaxis"] = axis(str(column.get("name", "")), anchor="y2")
+    pad = (edges[-1] - edges[0]) * 0.02 or 0.5
+    layout["xaxis"] = axis(
+        str(column.get("name", "")), anchor="y2", range=[edges[0] - pad, edges[-1] + pad]
+    )
     layout["yaxis"] = axis("rows", domain=[0.34, 1.0], anchor="x", rangemode="tozero")
     layout["yaxis2"] = axis(
         domain=[0.0, 0.26], anchor="x", range=[-1, 1], showticklabels=False, showgrid=False

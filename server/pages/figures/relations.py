@@ -116,12 +116,15 @@ def crosstab_table(
 ) -> tuple[list[str], list[str], list[list[float | None]], list[list[float | None]] | None]:
     """Row labels, column labels, counts and adjusted residuals of a crosstab.
 
-    Counts come either as a dict of dicts (``{row label: {column label: n}}``)
-    or as a nested list beside ``rows``/``columns`` label lists.
+    Counts come as the engine stores them (``{"a_labels", "b_labels", "matrix"}``),
+    as a dict of dicts (``{row label: {column label: n}}``) or as a nested list
+    beside ``rows``/``columns`` label lists.
     """
     counts = crosstab.get("counts")
     rows = crosstab.get("rows") or crosstab.get("row_labels")
     cols = crosstab.get("columns") or crosstab.get("column_labels")
+    if isinstance(counts, dict) and "matrix" in counts:
+        rows, cols, counts = counts.get("a_labels"), counts.get("b_labels"), counts["matrix"]
     if isinstance(counts, dict) and not rows:
         rows = list(counts)
         cols = list(dict.fromkeys(c for inner in counts.values() for c in inner))

@@ -78,7 +78,13 @@ def test_crosstab_table_reads_both_shapes() -> None:
         "counts": {"net": {"N": 3, "S": 1}, "line": {"N": 0, "S": 2}},
         "residuals": {"net": {"N": 1.5, "S": -1.5}, "line": {"N": -1.5, "S": 1.5}},
     }
-    assert crosstab_table(as_lists) == crosstab_table(as_dicts)
+    as_stored = {
+        "a": "gear",
+        "b": "port",
+        "counts": {"a_labels": ["net", "line"], "b_labels": ["N", "S"], "matrix": [[3, 1], [0, 2]]},
+        "residuals": [[1.5, -1.5], [-1.5, 1.5]],
+    }
+    assert crosstab_table(as_lists) == crosstab_table(as_dicts) == crosstab_table(as_stored)
     with pytest.raises(ValueError, match="do not match"):
         crosstab_table({"rows": ["a"], "columns": ["b"], "counts": [[1], [2]]})
 

@@ -1,0 +1,86 @@
+/* Tidewaiter: figures drawn from JSON embedded in the page, as they scroll into view.
+
+   A figure is an element whose data-figure attribute names the id of a script
+   element of type application/json holding the figure; it is read with
+   JSON.parse (never evaluated, never inserted as HTML). A select element with
+   data-choose=GROUP shows the element of GROUP whose data-choice equals the
+   selected value and hides the others. */
+(function () {
+  "use strict";
+
+  var CONFIG = {
+    responsive: true,
+    displaylogo: false,
+    modeBarButtonsToRemove: ["select2d", "lasso2d", "autoScale2d", "toggleSpikelines"],
+  };
+
+  function readJson(id) {
+    var node = document.getElementById(id);
+    return node ? JSON.parse(node.textContent) : null;
+  }
+
+  function plot(element, figure) {
+    element.dataset.state = "drawn";
+    return window.Plotly.newPlot(element, figure.data, figure.layout, CONFIG);
+  }
+
+  function draw(element) {
+    if (element.dataset.state === "drawn") return;
+    var figure = readJson(element.dataset.figure);
+    if (!figure) {
+      element.dataset.state = "missing";
+      return;
+    }
+    plot(element, figure);
+  }
+
+  var observer = null;
+  if ("IntersectionObserver" in window) {
+    observer = new IntersectionObserver(
+      function (entries) {
+        entries.forEach(function (entry) {
+          if (entry.isIntersecting) {
+            observer.unobserve(entry.target);
+            draw(entry.target);
+          }
+        });
+      },
+      { rootMargin: "400px 0px" }
+    );
+  }
+
+  function watch(root) {
+    (root || document).querySelectorAll("[data-figure]").forEach(function (element) {
+      if (element.dataset.state === "drawn") return;
+      element.dataset.state = "waiting";
+      if (observer) observer.observe(element);
+      else draw(element);
+    });
+  }
+
+  function choose(select) {
+    var group = select.dataset.choose;
+    document.querySelectorAll("[data-choice-group]").forEach(function (element) {
+      if (element.dataset.choiceGroup !== group) return;
+      element.hidden = element.dataset.choice !== select.value;
+      if (!element.hidden) {
+        element.querySelectorAll("[data-figure][data-state='drawn']").forEach(function (fig) {
+          window.Plotly.Plots.resize(fig);
+        });
+      }
+    });
+  }
+
+  function start() {
+    document.querySelectorAll("select[data-choose]").forEach(function (select) {
+      select.addEventListener("change", function () { choose(select); });
+      choose(select);
+    });
+    watch(document);
+  }
+
+  window.Tidewaiter = { readJson: readJson, plot: plot, draw: draw, watch: watch };
+
+  if (document.readyState === "loading") document.addEventListener("DOMContentLoaded", start);
+  else start();
+})();
