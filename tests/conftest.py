@@ -12,64 +12,28 @@
 
 from __future__ import annotations
 
-import os
 import shutil
-import uuid
 from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
-from sqlalchemy import create_engine, text
-from sqlalchemy.engine import make_url
 
 from server.settings import Settings
 from server.store import dispose_engines, schema
-
-DEFAULT_TEST_DATABASE = "postgresql+psycopg://postgres@127.0.0.1:5432/test"
-DEFAULT_TEST_REDIS = "redis://127.0.0.1:6379/15"
-
-
-def _service_missing(what: str, reason: object) -> None:
-    message = f"{what} is not reachable ({reason})"
-    if os.environ.get("TIDEWAITER_REQUIRE_SERVICES") == "1":
-        pytest.fail(f"{message}, and TIDEWAITER_REQUIRE_SERVICES=1")
-    pytest.skip(message)
+from tests.support import admin_token, empty_redis_database, fresh_postgres_database
 
 
 @pytest.fixture
 def postgres_url() -> Iterator[str]:
     """URL of a fresh, empty PostgreSQL database, dropped after the test."""
-    base = make_url(os.environ.get("TIDEWAITER_TEST_DATABASE_URL", DEFAULT_TEST_DATABASE))
-    admin = create_engine(base, isolation_level="AUTOCOMMIT")
-    name = f"tidewaiter_test_{uuid.uuid4().hex[:12]}"
-    try:
-        with admin.connect() as conn:
-            conn.execute(text(f'CREATE DATABASE "{name}"'))
-    except Exception as exc:
-        admin.dispose()
-        _service_missing("PostgreSQL", exc)
-    try:
-        yield base.set(database=name).render_as_string(hide_password=False)
-    finally:
-        dispose_engines()
-        with admin.connect() as conn:
-            conn.execute(text(f'DROP DATABASE IF EXISTS "{name}" WITH (FORCE)'))
-        admin.dispose()
+    with fresh_postgres_database() as url:
+        yield url
 
 
 @pytest.fixture
 def redis_url() -> str:
     """URL of a Redis database of its own (emptied first)."""
-    import redis
-
-    url = os.environ.get("TIDEWAITER_TEST_REDIS_URL", DEFAULT_TEST_REDIS)
-    try:
-        client = redis.Redis.from_url(url, socket_connect_timeout=2)
-        client.flushdb()
-        client.close()
-    except Exception as exc:
-        _service_missing("Redis", exc)
-    return url
+    return empty_redis_database()
 
 
 @pytest.fixture(params=["sqlite", "postgres"])
@@ -113,20 +77,6 @@ def app_settings(tmp_path: Path, migrated_sqlite: Path) -> Settings:
     return settings
 
 
-def _admin_token(settings: Settings) -> str | None:
-    """A real API token of a new admin, when accounts exist."""
-    try:
-        from server.store import accounts
-    except ImportError:
-        return None
-    from server.store import session_scope
-
-    with session_scope(settings) as session:
-        user = accounts.create_user(session, "test admin", accounts.Role.admin)
-        _token, plaintext = accounts.create_token(session, user, "tests")
-    return plaintext
-
-
 @pytest.fixture
 def anonymous_client(app_settings: Settings) -> Iterator[object]:
     """A TestClient of a fresh app on the migrated database, with no credentials."""
@@ -144,7 +94,7 @@ def anonymous_client(app_settings: Settings) -> Iterator[object]:
 @pytest.fixture
 def client(anonymous_client: object, app_settings: Settings) -> object:
     """The same app, signed in as an admin through a real API token."""
-    token = _admin_token(app_settings)
+    token = admin_token(app_settings)
     if token is not None:
         anonymous_client.headers["Authorization"] = f"Bearer {token}"  # type: ignore[attr-defined]
     return anonymous_client

@@ -2,8 +2,22 @@
 
 from __future__ import annotations
 
+import os
 import time
+import uuid
+from collections.abc import Iterator
+from contextlib import contextmanager
 from typing import Any
+
+import pytest
+from sqlalchemy import create_engine, text
+from sqlalchemy.engine import make_url
+
+from server.settings import Settings
+from server.store import dispose_engines
+
+DEFAULT_TEST_DATABASE = "postgresql+psycopg://postgres@127.0.0.1:5432/test"
+DEFAULT_TEST_REDIS = "redis://127.0.0.1:6379/15"
 
 FINISHED = ("ready", "failed")
 
@@ -34,3 +48,60 @@ def upload(client: Any, content: bytes, *, supplier: str | int, name: str = "del
         data={"supplier": str(supplier)},
         files={"file": (name, content, "text/csv")},
     )
+
+
+def service_missing(what: str, reason: object) -> None:
+    """Skip the test, or fail it when TIDEWAITER_REQUIRE_SERVICES=1."""
+    message = f"{what} is not reachable ({reason})"
+    if os.environ.get("TIDEWAITER_REQUIRE_SERVICES") == "1":
+        pytest.fail(f"{message}, and TIDEWAITER_REQUIRE_SERVICES=1")
+    pytest.skip(message)
+
+
+@contextmanager
+def fresh_postgres_database() -> Iterator[str]:
+    """A new, empty database created from TIDEWAITER_TEST_DATABASE_URL, dropped at the end."""
+    base = make_url(os.environ.get("TIDEWAITER_TEST_DATABASE_URL", DEFAULT_TEST_DATABASE))
+    admin = create_engine(base, isolation_level="AUTOCOMMIT")
+    name = f"tidewaiter_test_{uuid.uuid4().hex[:12]}"
+    try:
+        with admin.connect() as conn:
+            conn.execute(text(f'CREATE DATABASE "{name}"'))
+    except Exception as exc:
+        admin.dispose()
+        service_missing("PostgreSQL", exc)
+    try:
+        yield base.set(database=name).render_as_string(hide_password=False)
+    finally:
+        dispose_engines()
+        with admin.connect() as conn:
+            conn.execute(text(f'DROP DATABASE IF EXISTS "{name}" WITH (FORCE)'))
+        admin.dispose()
+
+
+def empty_redis_database() -> str:
+    """TIDEWAITER_TEST_REDIS_URL (a Redis database number of the tests' own), emptied."""
+    import redis
+
+    url = os.environ.get("TIDEWAITER_TEST_REDIS_URL", DEFAULT_TEST_REDIS)
+    try:
+        client = redis.Redis.from_url(url, socket_connect_timeout=2)
+        client.flushdb()
+        client.close()
+    except Exception as exc:
+        service_missing("Redis", exc)
+    return url
+
+
+def admin_token(settings: Settings) -> str | None:
+    """A real API token of a new admin, when accounts exist."""
+    try:
+        from server.store import accounts
+    except ImportError:
+        return None
+    from server.store import session_scope
+
+    with session_scope(settings) as session:
+        user = accounts.create_user(session, "test admin", accounts.Role.admin)
+        _token, plaintext = accounts.create_token(session, user, "tests")
+    return plaintext
