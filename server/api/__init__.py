@@ -2,7 +2,7 @@
 
 from fastapi import APIRouter, Depends
 
-from server.api.deps import current_user
+from server.api.deps import AdminForChanges, current_user
 from server.api.routes import audit, auth, health, intakes, privacy, suppliers, tokens, users
 
 API_PREFIX = "/api/v1"
@@ -11,7 +11,7 @@ API_PREFIX = "/api/v1"
 # admin routers add their own ``RequireAdmin``.
 api_router = APIRouter(prefix=API_PREFIX, dependencies=[Depends(current_user)])
 api_router.include_router(intakes.router)
-api_router.include_router(suppliers.router)
+api_router.include_router(suppliers.router, dependencies=[AdminForChanges])
 
 api_router.include_router(users.router)
 api_router.include_router(audit.router)

@@ -25,10 +25,8 @@ SIGN_IN_PATH = "/sign-in"
 
 
 def wants_json(request: Request) -> bool:
-    """API requests (and scripts asking for JSON) get JSON; browsers get pages."""
-    return request.url.path.startswith(API_PATH) or "text/html" not in request.headers.get(
-        "accept", "text/html"
-    )
+    """API requests get JSON answers; pages get a redirect or a short page."""
+    return request.url.path.startswith(API_PATH)
 
 
 def sign_in_url(request: Request) -> str:

@@ -15,6 +15,7 @@ from server.api.deps import CurrentUser, FileStoreDep, IntakeDep, SessionDep, Se
 from server.api.errors import ApiError
 from server.api.schemas import IntakeOut, IntakePage
 from server.api.uploads import receive_upload
+from server.security.masking import visible_profile
 from server.store import FileStore, Intake, IntakeStatus, Profile, Supplier
 from server.store.models import utcnow
 from worker.jobs import enqueue_profile
@@ -169,8 +170,8 @@ def get_intake(intake: IntakeDep, user: CurrentUser) -> IntakeOut:
 
 
 @router.get("/{intake_id}/profile")
-def get_profile(intake: IntakeDep, user: CurrentUser) -> dict[str, Any]:
-    """The intake's profile document (format_version 1)."""
+def get_profile(intake: IntakeDep, session: SessionDep, user: CurrentUser) -> dict[str, Any]:
+    """The intake's profile document (format_version 1), personal values masked unless unmasked."""
     if intake.profile is None:
         if intake.status == IntakeStatus.failed:
             raise ApiError(
@@ -182,7 +183,7 @@ def get_profile(intake: IntakeDep, user: CurrentUser) -> dict[str, Any]:
             f"({intake.stage}, {intake.progress:.0%} read)",
             code="not_ready",
         )
-    return intake.profile.document
+    return visible_profile(session, intake.id, intake.profile.document)
 
 
 @router.post("/{intake_id}/reprofile", response_model=IntakeOut, status_code=202)
