@@ -48,20 +48,51 @@ def _check_columns(file: pq.ParquetFile, names: list[str]) -> None:
         raise QueryError(f"no column named {', '.join(repr(n) for n in unknown)}")
 
 
-def _clean(table: pa.Table, names: list[str], options: ProfileOptions) -> dict[str, pa.Array]:
-    """Labels of ``names`` as the engine prepares them: trimmed, null where missing."""
+def _clean_labels(raw: pa.Array, options: ProfileOptions) -> pa.Array:
+    """Labels as the engine prepares them (``prepare_batch``): trimmed, null where missing."""
     plan = BatchPlan(
-        numeric=frozenset(), labels=frozenset(names), missing_tokens=tuple(options.missing_tokens)
+        numeric=frozenset(), labels=frozenset(["v"]), missing_tokens=tuple(options.missing_tokens)
     )
-    parts: dict[str, list[pa.Array]] = {name: [] for name in names}
-    for batch in table.select(names).to_batches():
-        prepared = prepare_batch(batch, 0, plan)
-        for name in names:
-            parts[name].append(prepared.labels[name])
-    return {
-        name: pa.concat_arrays(chunks) if chunks else pa.array([], pa.string())
-        for name, chunks in parts.items()
-    }
+    return prepare_batch(pa.record_batch({"v": raw}), 0, plan).labels["v"]
+
+
+class LabelColumn:
+    """A label column as codes into its labels: -1 where the cell is missing.
+
+    The engine's cleaning is applied to each row group's dictionary of distinct
+    raw texts (Parquet stores text dictionary-encoded), not to every cell, and
+    the cleaned dictionaries are encoded once more into one label list, so a
+    million rows of a few labels cost little more than reading their codes.
+    """
+
+    def __init__(self, column: pa.ChunkedArray, options: ProfileOptions) -> None:
+        chunks = [
+            chunk if pa.types.is_dictionary(chunk.type) else pc.dictionary_encode(chunk)
+            for chunk in column.chunks
+        ]
+        cleaned = [_clean_labels(chunk.dictionary, options) for chunk in chunks]
+        if cleaned:
+            both = pc.dictionary_encode(pa.concat_arrays([c.cast(pa.string()) for c in cleaned]))
+            self.labels: list[str] = both.dictionary.to_pylist()
+            global_codes = both.indices.fill_null(-1).to_numpy(zero_copy_only=False)
+        else:
+            self.labels, global_codes = [], np.empty(0, dtype=np.int64)
+        parts, start = [], 0
+        for chunk, clean in zip(chunks, cleaned, strict=True):
+            lookup = np.append(global_codes[start : start + len(clean)], -1).astype(np.int64)
+            local = chunk.indices.fill_null(len(clean)).to_numpy(zero_copy_only=False)
+            parts.append(lookup[local])
+            start += len(clean)
+        self.codes = np.concatenate(parts) if parts else np.empty(0, dtype=np.int64)
+
+    def matches(self, value: str | None) -> np.ndarray:
+        """Rows whose cleaned label is ``value`` (None: rows where the cell is missing)."""
+        if value is None:
+            return self.codes < 0
+        try:
+            return self.codes == self.labels.index(str(value).strip())
+        except ValueError:
+            return np.zeros(len(self.codes), dtype=bool)
 
 
 def _read(
@@ -69,22 +100,19 @@ def _read(
     labels_of: list[str],
     where: Where,
     options: ProfileOptions,
-) -> tuple[pq.ParquetFile, dict[str, pa.Array], np.ndarray | None]:
-    """The file, the cleaned labels of ``labels_of`` and of the filter columns, the row mask."""
+) -> tuple[pq.ParquetFile, dict[str, LabelColumn], np.ndarray | None]:
+    """The file, the label columns of ``labels_of`` and of the filter, and the row mask."""
     file = _open(path)
     where = dict(where or {})
     needed = list(dict.fromkeys([*labels_of, *where]))
     _check_columns(file, needed)
-    labels = _clean(file.read(columns=needed), needed, options) if needed else {}
+    text = [name for name in needed if pa.types.is_string(file.schema_arrow.field(name).type)]
+    table = pq.read_table(path, columns=needed, read_dictionary=text) if needed else None
+    labels = {name: LabelColumn(table.column(name), options) for name in needed} if needed else {}
     mask = None
     for name, value in where.items():
-        column = labels[name]
-        if value is None:
-            hit = pc.is_null(column)
-        else:
-            hit = pc.fill_null(pc.equal(column, pa.scalar(str(value).strip())), False)
-        hit_np = hit.to_numpy(zero_copy_only=False)
-        mask = hit_np if mask is None else (mask & hit_np)
+        hit = labels[name].matches(value)
+        mask = hit if mask is None else (mask & hit)
     return file, labels, mask
 
 
@@ -103,20 +131,6 @@ def _take_rows(file: pq.ParquetFile, rows: np.ndarray, columns: list[str]) -> pa
     return table.take(pa.array(local))
 
 
-def _filtered(array: pa.Array, mask: np.ndarray | None) -> pa.Array:
-    return array if mask is None else array.filter(pa.array(mask))
-
-
-def _counts(array: pa.Array) -> list[tuple[str, int]]:
-    """(label, count) of the non-missing labels, most frequent first, then by label."""
-    counted = pc.value_counts(array.drop_null())
-    pairs = list(
-        zip(counted.field("values").to_pylist(), counted.field("counts").to_pylist(), strict=True)
-    )
-    pairs.sort(key=lambda item: (-item[1], item[0]))
-    return pairs
-
-
 def label_counts(
     path: str | os.PathLike[str],
     column: str,
@@ -133,17 +147,22 @@ def label_counts(
     """
     options = options or ProfileOptions()
     _, labels, mask = _read(path, [column], where, options)
-    values = _filtered(labels[column], mask)
-    total = len(values)
-    counted = _counts(values)
+    label = labels[column]
+    codes = label.codes if mask is None else label.codes[mask]
+    total = len(codes)
+    counts = np.bincount(codes[codes >= 0], minlength=len(label.labels))
+    counted = sorted(
+        ((label.labels[i], int(c)) for i, c in enumerate(counts) if c), key=lambda x: (-x[1], x[0])
+    )
     out = [
         {"value": value, "count": count, "share": count / total} for value, count in counted[:limit]
     ]
     rest = sum(count for _, count in counted[limit:])
     if rest:
         out.append({"value": OTHER_LABEL, "count": rest, "share": rest / total, "other": True})
-    if values.null_count:
-        out.append({"value": None, "count": values.null_count, "share": values.null_count / total})
+    missing = int((codes < 0).sum())
+    if missing:
+        out.append({"value": None, "count": missing, "share": missing / total})
     return out
 
 
@@ -168,23 +187,26 @@ def crosstab(
         raise QueryError("a crosstab needs two different columns")
     options = options or ProfileOptions()
     _, labels, mask = _read(path, [a, b], where, options)
-    col_a, col_b = _filtered(labels[a], mask), _filtered(labels[b], mask)
-    both = pc.and_(pc.is_valid(col_a), pc.is_valid(col_b))
-    col_a, col_b = col_a.filter(both), col_b.filter(both)
-    folded = []
-    sides = []
-    for name, column in ((a, col_a), (b, col_b)):
-        counted = _counts(column)
-        kept = sorted(label for label, _ in counted[:max_labels])
-        if len(counted) > max_labels:
+    code_a, code_b = labels[a].codes, labels[b].codes
+    keep = (code_a >= 0) & (code_b >= 0)
+    if mask is not None:
+        keep &= mask
+    folded, sides, codes = [], [], []
+    for name, label, code in ((a, labels[a], code_a[keep]), (b, labels[b], code_b[keep])):
+        counts = np.bincount(code, minlength=len(label.labels))
+        present = np.flatnonzero(counts)
+        ranked = present[
+            np.lexsort((np.array(label.labels, dtype=object)[present], -counts[present]))
+        ]
+        kept = sorted(ranked[:max_labels], key=lambda i: label.labels[i])
+        lookup = np.full(len(label.labels), len(kept), dtype=np.int64)
+        lookup[kept] = np.arange(len(kept))
+        names = [label.labels[i] for i in kept]
+        if len(ranked) > max_labels:
             folded.append(name)
-            kept.append(OTHER_LABEL)
-        sides.append(kept)
-    codes = []
-    for column, kept in zip((col_a, col_b), sides, strict=True):
-        index = pc.index_in(column, value_set=pa.array(kept, pa.string()))
-        other = len(kept) - 1
-        codes.append(pc.fill_null(index, other).to_numpy(zero_copy_only=False).astype(np.int64))
+            names.append(OTHER_LABEL)
+        sides.append(names)
+        codes.append(lookup[code])
     size_a, size_b = len(sides[0]), len(sides[1])
     table = np.bincount(codes[0] * size_b + codes[1], minlength=size_a * size_b)
     table = table.reshape(size_a, size_b)

@@ -137,3 +137,27 @@ def test_clear_errors(tmp_path: Path, copy_path: Path) -> None:
         label_counts(tmp_path / "absent.parquet", "role")
     with pytest.raises(QueryError, match="two different"):
         crosstab(copy_path, "role", "role")
+
+
+def test_labels_are_cleaned_as_the_engine_cleans_them(tmp_path: Path) -> None:
+    # Reference: the engine's own batch preparation (prepare_batch) on the same raw cells.
+    from worker.profiling.prepared import BatchPlan, prepare_batch
+
+    raw = ["\u00a0pilot", "pilot\t", "NULL", " ", None, "Pilot", "#N/A", "clerk"] * 50
+    batch = pa.record_batch({"role": pa.array(raw, pa.string())})
+    path = tmp_path / "roles.parquet"
+    with ColumnarCopy(path, row_group_rows=64) as copy:
+        for part in pa.Table.from_batches([batch]).to_batches(max_chunksize=30):
+            copy.write(part)
+    plan = BatchPlan(frozenset(), frozenset(["role"]), DEFAULT_MISSING_TOKENS)
+    engine = pd.Series(prepare_batch(batch, 0, plan).labels["role"].to_pylist(), dtype=object)
+    counts = {c["value"]: c["count"] for c in label_counts(path, "role")}
+    expected = engine.value_counts().to_dict() | {None: int(engine.isna().sum())}  # pandas
+    assert counts == expected
+
+
+def test_typed_parquet_columns_are_labels_too(tmp_path: Path) -> None:
+    path = tmp_path / "typed.parquet"
+    with ColumnarCopy(path) as copy:
+        copy.write(pa.record_batch({"crew": pa.array([3, 4, 3, None]), "dock": list("abab")}))
+    assert label_counts(path, "crew", {"dock": "a"}) == [{"value": "3", "count": 2, "share": 1.0}]
