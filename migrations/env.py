@@ -12,6 +12,7 @@ from sqlalchemy import Connection
 from server.settings import get_settings
 from server.store import Base, load_models
 from server.store.database import make_engine
+from server.store.schema import render_item
 
 load_models()
 target_metadata = Base.metadata
@@ -28,6 +29,7 @@ def _run(connection: Connection) -> None:
         target_metadata=target_metadata,
         render_as_batch=connection.dialect.name == "sqlite",
         compare_type=True,
+        render_item=render_item,
     )
     with context.begin_transaction():
         context.run_migrations()

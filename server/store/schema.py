@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 from pathlib import Path
+from typing import Any, Literal
 
+import sqlalchemy as sa
 from alembic import command
 from alembic.config import Config
 from alembic.script import ScriptDirectory
@@ -33,3 +35,22 @@ def downgrade(database_url: str, revision: str = "base") -> None:
 def heads() -> list[str]:
     """The head revisions of the migration scripts (exactly one when the history is linear)."""
     return list(ScriptDirectory.from_config(alembic_config("sqlite://")).get_heads())
+
+
+def render_item(type_: str, obj: Any, autogen_context: Any) -> str | Literal[False]:
+    """Write our column types in generated migrations as plain SQLAlchemy types.
+
+    Without it, autogenerate would write ``server.store.models.UTCDateTime``
+    (a migration must not import the models) and a JSONB variant with an
+    unimported ``Text()``.
+    """
+    from server.store.models import UTCDateTime
+
+    if type_ != "type":
+        return False
+    if isinstance(obj, UTCDateTime):
+        return "sa.DateTime(timezone=True)"
+    if isinstance(obj, sa.JSON) and "postgresql" in getattr(obj, "_variant_mapping", {}):
+        autogen_context.imports.add("from sqlalchemy.dialects import postgresql")
+        return "sa.JSON().with_variant(postgresql.JSONB(astext_type=sa.Text()), 'postgresql')"
+    return False

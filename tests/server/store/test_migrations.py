@@ -35,3 +35,23 @@ def test_upgrade_then_downgrade_on_both_databases(database_url: str) -> None:
         assert set(inspect(engine).get_table_names()) >= OWN_TABLES
     finally:
         engine.dispose()
+
+
+def test_generated_migrations_use_plain_sqlalchemy_types(tmp_path) -> None:
+    from alembic.autogenerate import produce_migrations, render_python_code
+
+    from server.store.schema import render_item
+
+    load_models()
+    engine = make_engine(f"sqlite:///{tmp_path / 'empty.sqlite3'}")
+    try:
+        with engine.connect() as conn:
+            context = MigrationContext.configure(conn, opts={"render_item": render_item})
+            code = render_python_code(
+                produce_migrations(context, Base.metadata).upgrade_ops, render_item=render_item
+            )
+    finally:
+        engine.dispose()
+    assert "server.store" not in code
+    assert "sa.DateTime(timezone=True)" in code
+    assert "astext_type=Text()" not in code
