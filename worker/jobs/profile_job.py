@@ -33,6 +33,7 @@ from server.store import (
     session_scope,
 )
 from server.store.models import utcnow
+from worker.jobs.judging import judge_intake
 from worker.jobs.progress import ProgressReporter
 from worker.jobs.summaries import column_rows, json_safe, overall_score
 from worker.profiling import ProfileError, profile_file
@@ -112,6 +113,7 @@ def profile_intake(
     if partial_copy.exists():
         os.replace(partial_copy, final_copy)
     _store_profile(settings, intake_id, json_safe(document))
+    judge_intake(intake_id, settings)
     return IntakeStatus.ready
 
 

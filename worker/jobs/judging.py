@@ -1,0 +1,108 @@
+"""Judging an intake after profiling: its supplier's rules, the drift against its baseline.
+
+``judge_intake`` re-reads everything from the database, so it runs the same
+after a profiling job, after new rules are saved, or when a person picks
+another baseline. The baseline is the one a person chose for this intake, or
+else the supplier's newest earlier intake whose current decision accepts it.
+The result replaces the intake's ``Judgement`` row; the profile document's
+``flags``, ``score`` and ``verdict`` are updated to match, so every reader of
+the profile sees the same judgement.
+"""
+
+from __future__ import annotations
+
+import logging
+from typing import Any
+
+from sqlalchemy.orm import Session
+
+from server.settings import Settings, get_settings
+from server.store import Intake, session_scope
+from server.store.reviews import Judgement, last_accepted_intake, latest_rules
+from worker.profiling.judgement import assess, compare_profiles, parse_rules
+from worker.profiling.judgement.rules import RulesError, thresholds_for
+
+log = logging.getLogger(__name__)
+
+_UNSET: Any = object()
+
+
+def judge(
+    session: Session,
+    intake: Intake,
+    settings: Settings,
+    *,
+    baseline_id: int | None = _UNSET,
+) -> Judgement | None:
+    """Judge ``intake`` in ``session`` and return its (new or replaced) judgement.
+
+    ``baseline_id`` chooses the baseline (None: no baseline is chosen, use the
+    default). Without it, an earlier choice stays. Returns None when the
+    intake has no profile yet.
+    """
+    if intake.profile is None:
+        return None
+    document = intake.profile.document
+    judgement = session.query(Judgement).filter_by(intake_id=intake.id).one_or_none()
+    if baseline_id is _UNSET:
+        chosen = judgement.baseline_intake_id if judgement and judgement.baseline_chosen else None
+    else:
+        chosen = baseline_id
+    baseline = session.get(Intake, chosen) if chosen is not None else None
+    if baseline is None or baseline.profile is None:
+        chosen = None
+        baseline = last_accepted_intake(session, intake.supplier_id, intake)
+    rules_row = latest_rules(session, intake.supplier_id)
+    rules = None
+    if rules_row is not None:
+        try:
+            rules = parse_rules(rules_row.document)
+        except RulesError:  # saved rules are validated; an older schema may no longer fit
+            log.warning("rules version %s of supplier %s no longer validate", rules_row.version,
+                        intake.supplier_id)  # fmt: skip
+            rules_row, rules = None, None
+    thresholds = thresholds_for(rules, settings.profiling.thresholds)
+    drift = None
+    if baseline is not None:
+        drift = compare_profiles(
+            {**baseline.profile.document, "intake_id": baseline.id},
+            {**document, "intake_id": intake.id},
+            thresholds=thresholds,
+        )
+    result = assess(document, thresholds=settings.profiling.thresholds, rules=rules, drift=drift)
+    severities = [flag["severity"] for flag in result["flags"]]
+    if judgement is None:
+        judgement = Judgement(intake_id=intake.id)
+        session.add(judgement)
+    judgement.rules_id = rules_row.id if rules_row else None
+    judgement.rules_version = rules_row.version if rules_row else None
+    judgement.baseline_intake_id = baseline.id if baseline is not None else None
+    judgement.baseline_chosen = chosen is not None
+    judgement.assessment = result
+    judgement.drift = drift
+    judgement.overall_score = result["score"]["overall"]
+    judgement.suggested_verdict = result["verdict"]
+    judgement.critical = severities.count("critical")
+    judgement.warnings = severities.count("warning")
+    judgement.infos = severities.count("info")
+    intake.profile.document = {
+        **document,
+        "flags": result["flags"],
+        "score": result["score"],
+        "verdict": result["verdict"],
+    }
+    intake.profile.overall_score = result["score"]["overall"]
+    session.flush()
+    return judgement
+
+
+def judge_intake(intake_id: int, settings: Settings | None = None) -> None:
+    """Judge one intake after it was profiled; a failure is logged, the profile stays."""
+    settings = settings or get_settings()
+    try:
+        with session_scope(settings) as session:
+            intake = session.get(Intake, intake_id)
+            if intake is not None:
+                judge(session, intake, settings)
+    except Exception:
+        log.exception("judging intake %s failed; its profile is kept unjudged", intake_id)
