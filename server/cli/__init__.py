@@ -10,9 +10,9 @@ import argparse
 import sys
 from collections.abc import Sequence
 
-from server.cli import compare, engine, service
+from server.cli import accounts, compare, engine, service
 
-COMMAND_GROUPS = (service, engine, compare)
+COMMAND_GROUPS = (service, engine, compare, accounts)
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import argparse
 
-from server.settings import get_settings
+from server.settings import Settings, get_settings
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
@@ -47,6 +47,19 @@ def _safe_url(url: str) -> str:
     return make_url(url).render_as_string(hide_password=True)
 
 
+def _sign_in_notice(settings: Settings) -> list[str]:
+    """How to sign in: the demo accounts while they exist, else how to add a user."""
+    from server.security.demo_accounts import sign_in_notice
+    from server.store import session_scope
+
+    try:
+        with session_scope(settings) as session:
+            lines = sign_in_notice(session)
+    except Exception:  # no schema yet: `tidewaiter db upgrade` comes first
+        return ["Run `tidewaiter db upgrade` first, then `tidewaiter user add NAME --role admin`."]
+    return lines or ["Sign in with an account from `tidewaiter user add NAME --role ROLE`."]
+
+
 def _serve(args: argparse.Namespace) -> int:
     import uvicorn
 
@@ -56,7 +69,8 @@ def _serve(args: argparse.Namespace) -> int:
     host = args.host or settings.host
     port = args.port or settings.port
     print(f"Tidewaiter is serving on http://{host}:{port}/ (API docs at /docs)")
-    print("No sign-in yet: every visitor acts as the anonymous reviewer.")
+    for line in _sign_in_notice(settings):
+        print(line)
     uvicorn.run(create_app(settings), host=host, port=port, log_level=args.log_level)
     return 0
 

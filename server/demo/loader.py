@@ -22,6 +22,7 @@ from sqlalchemy import select
 
 from server.api.deps import User, current_user
 from server.demo.scenario import SUPPLIERS, deliveries
+from server.security.demo_accounts import ensure_demo_accounts
 from server.settings import Settings
 from server.store import Intake, IntakeStatus, Supplier, session_scope
 
@@ -35,6 +36,7 @@ class DemoResult:
     created: list[int] = field(default_factory=list)
     skipped: list[str] = field(default_factory=list)
     statuses: dict[int, str] = field(default_factory=dict)
+    accounts: list[str] = field(default_factory=list)
 
 
 def _already_sent(settings: Settings, supplier: str, sha256: str) -> bool:
@@ -58,6 +60,8 @@ def load_demo(settings: Settings, *, wait_seconds: float = 120.0) -> DemoResult:
     from server.app import create_app
 
     result = DemoResult()
+    with session_scope(settings) as session:
+        result.accounts = ensure_demo_accounts(session)
     app = create_app(settings)
     # A local command is trusted: it acts as an in-process admin rather than signing in.
     app.dependency_overrides[current_user] = lambda: LOADER

@@ -16,7 +16,8 @@ from datetime import datetime, timedelta
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
-from server.store import FileStore, Intake, IntakeStatus, accounts
+from server.settings import Settings
+from server.store import FileStore, Intake, IntakeStatus, accounts, file_store, session_scope
 from server.store.models import utcnow
 
 
@@ -65,3 +66,12 @@ def delete_intake(session: Session, store: FileStore, intake: Intake) -> None:
     session.flush()
     if key is not None:
         discard_if_unused(session, store, key)
+
+
+def purge_by_settings(settings: Settings) -> list[int]:
+    """One retention round as the settings ask (none when ``retention_days`` is empty)."""
+    days = settings.security.retention_days
+    if days is None:
+        return []
+    with session_scope(settings) as session:
+        return purge_old_files(session, file_store(settings), days=days)

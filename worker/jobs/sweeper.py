@@ -21,6 +21,7 @@ from datetime import datetime, timedelta
 
 from sqlalchemy import select, update
 
+from server.security.retention import purge_by_settings
 from server.settings import Settings
 from server.store import Intake, IntakeStatus, session_scope
 from server.store.models import utcnow
@@ -100,6 +101,7 @@ class SweeperThread(threading.Thread):
         while not self._stop_event.wait(self.settings.sweeper_interval_seconds):
             try:
                 sweep(self.settings)
+                purge_by_settings(self.settings)  # retention: old stored files, profiles stay
             except Exception:
                 log.exception("sweeper round failed; trying again next round")
 
