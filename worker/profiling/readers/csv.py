@@ -83,7 +83,8 @@ class CsvSource(TableSource):
         return pa.PythonFile(self._stream, mode="r")
 
     def _on_invalid_row(self, row: pacsv.InvalidRow) -> str:
-        message = f"the row has {row.actual_columns} fields where {row.expected_columns} belong"
+        fields = "field" if row.actual_columns == 1 else "fields"
+        message = f"the row has {row.actual_columns} {fields} where {row.expected_columns} belong"
         if len(self._pending) < self._errors.limit:
             self._pending.append((row.number, row.text, message))
         else:

@@ -2,9 +2,9 @@
 
 Byte order marks decide first (UTF-8, UTF-16). Then a sample that decodes as
 UTF-8 is UTF-8 (ASCII included). Otherwise charset-normalizer ranks the
-single-byte code pages; when several decode the sample equally well (a short
-Western European sample fits cp1250 as well as cp1252), the most common one
-in Western deliveries, cp1252, is preferred.
+single-byte code pages; when several decode the sample about equally well (a
+short Western European sample fits cp1250 as well as cp1252, a Russian one
+mac_cyrillic nearly as well as cp1251), the Windows code pages are preferred.
 """
 
 from __future__ import annotations
@@ -15,9 +15,13 @@ import charset_normalizer
 
 from worker.profiling.errors import ProfileError
 
-# Equally good guesses are settled in this order (common practice: cp1252 is
-# what spreadsheet programs on Western-language systems write as "ANSI").
-PREFERRED_WHEN_TIED = ("cp1252", "latin_1", "iso8859_15")
+# Guesses whose "chaos" (charset-normalizer's mess measure, 0 to 1) is within
+# this much of the best one count as equally good; among them the Windows code
+# pages win, cp1252 first, then the better language coherence (common
+# practice: spreadsheet programs on Windows write these as "ANSI"; Mac and DOS
+# code pages are rare in deliveries). Known limit: a short Turkish cp1254
+# sample that also decodes cleanly as cp1252 is reported as cp1252.
+CHAOS_TOLERANCE = 0.05
 
 
 def detect_encoding(sample: bytes) -> str:
@@ -39,15 +43,22 @@ def detect_encoding(sample: bytes) -> str:
     best = results.best()
     if best is None:
         raise ProfileError("the text encoding of the file cannot be recognised")
-    tied: set[str] = set()
+    candidates: list[tuple[int, bool, float, float, str]] = []
     for match in results:
-        if match.chaos <= best.chaos + 0.01 and match.coherence >= best.coherence - 0.01:
-            tied.add(match.encoding)
-            tied.update(match.could_be_from_charset)
-    for name in PREFERRED_WHEN_TIED:
-        if name in tied:
-            return name
-    return best.encoding
+        if match.chaos <= best.chaos + CHAOS_TOLERANCE:
+            for name in match.could_be_from_charset:
+                rank = (_tier(name), name != "cp1252", -round(match.coherence, 3), match.chaos)
+                candidates.append((*rank, name))
+    return min(candidates)[-1] if candidates else best.encoding
+
+
+def _tier(name: str) -> int:
+    """Lower is likelier in a delivered file: Windows code pages, then ISO 8859, then others."""
+    if name.startswith("cp125"):
+        return 0
+    if name == "latin_1" or name.startswith("iso8859"):
+        return 1
+    return 2
 
 
 def arrow_encoding(encoding: str) -> str:

@@ -107,6 +107,7 @@ def _number_style(cells: list[str]) -> tuple[str, str | None]:
             continue
         if _SPACE_GROUPS.match(cell):
             space_groups += 1
+            cell = re.sub(r"[ \u00a0\u202f]", "", cell)
         if _COMMA_GROUPS.match(cell) and (cell.count(",") > 1 or "." in cell):
             comma_groups += 1
         if _DOT_GROUPS.match(cell) and (cell.count(".") > 1 or "," in cell):
