@@ -1,4 +1,4 @@
-"""Subcommands that run the service: serve, worker, sweep, db, demo."""
+"""Subcommands that run the service: serve, worker, sweep, db, demo, settings."""
 
 from __future__ import annotations
 
@@ -125,6 +125,13 @@ def _demo_load(args: argparse.Namespace) -> int:
     return 1 if failed else 0
 
 
+def _settings_table(args: argparse.Namespace) -> int:
+    from server.settings_doc import settings_table
+
+    print(settings_table())
+    return 0
+
+
 def _register_running(subparsers: argparse._SubParsersAction) -> None:
     serve = subparsers.add_parser("serve", help="serve the web app and the API")
     serve.add_argument("--host", help="address to listen on (default: the host setting)")
@@ -142,6 +149,9 @@ def _register_running(subparsers: argparse._SubParsersAction) -> None:
     )
     sweep.add_argument("--loop", action="store_true", help="sweep every sweeper interval")
     sweep.set_defaults(handler=_sweep)
+
+    table = subparsers.add_parser("settings", help="print every setting and its default")
+    table.set_defaults(handler=_settings_table)
 
     demo = subparsers.add_parser("demo", help="the invented demo scenario")
     demo_commands = demo.add_subparsers(dest="demo_command", required=True, metavar="ACTION")
