@@ -353,3 +353,39 @@ def mask_profile(profile: dict[str, Any]) -> dict[str, Any]:
     masked["flags"] = flags
     masked["masked"] = sorted(kinds)
     return masked
+
+
+class PersonalSample:
+    """The first ``size`` non-missing values of a text column, kept for ``detect_personal``.
+
+    Mergeable like the other column states: merging keeps the values of the
+    earlier rows first, so a file profiled in chunks checks the same values as
+    one profiled whole (when chunks are merged in row order).
+    """
+
+    def __init__(self, size: int = DEFAULT_SAMPLE) -> None:
+        self.size = size
+        self.values: list[str] = []
+
+    @property
+    def full(self) -> bool:
+        return len(self.values) >= self.size
+
+    def update(self, raw: pa.Array, missing: np.ndarray | None = None) -> None:
+        """Add values of one batch (``missing``: True where the cell counts as missing)."""
+        if self.full or not (pa.types.is_string(raw.type) or pa.types.is_large_string(raw.type)):
+            return
+        if missing is not None and missing.any():
+            raw = pc.filter(raw, pa.array(~missing))
+        raw = pc.drop_null(raw)
+        room = self.size - len(self.values)
+        self.values.extend(raw.slice(0, room).to_pylist())
+
+    def merge(self, other: PersonalSample) -> PersonalSample:
+        out = PersonalSample(self.size)
+        out.values = (self.values + other.values)[: self.size]
+        return out
+
+    def finalize(self, min_share: float = DEFAULT_MIN_SHARE) -> dict[str, Any] | None:
+        """What ``detect_personal`` finds in the kept values (None for no personal data)."""
+        return detect_personal(self.values, sample=self.size, min_share=min_share)

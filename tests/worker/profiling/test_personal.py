@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import numpy as np
 import pyarrow as pa
 import pytest
 from hypothesis import given, settings
@@ -10,6 +11,7 @@ from stdnum import iban as stdnum_iban
 from stdnum import luhn as stdnum_luhn
 
 from worker.profiling.personal import (
+    PersonalSample,
     detect_personal,
     iban_is_valid,
     luhn_is_valid,
@@ -218,3 +220,28 @@ def test_mask_profile_hides_labels_samples_and_crosstab_keys() -> None:
 def test_mask_profile_without_personal_columns_is_the_same_document() -> None:
     profile = {"columns": [{"name": "x", "kind": "numeric"}]}
     assert mask_profile(profile) is profile
+
+
+def test_personal_sample_keeps_the_first_present_values_and_merges_in_order() -> None:
+    first, second = PersonalSample(size=4), PersonalSample(size=4)
+    first.update(pa.array(["ada@example.org", None, "n/a"]), np.array([False, True, True]))
+    second.update(pa.array(["bo@example.org", "cy@example.org", "di@example.org"]))
+    merged = first.merge(second)
+    assert merged.values == [
+        "ada@example.org",
+        "bo@example.org",
+        "cy@example.org",
+        "di@example.org",
+    ]
+    found = merged.finalize()
+    assert found is not None and found["kind"] == "email" and found["checked"] == 4
+
+
+def test_personal_sample_stops_at_its_size_and_ignores_typed_columns() -> None:
+    sample = PersonalSample(size=2)
+    sample.update(pa.array(["192.0.2.1", "192.0.2.2", "192.0.2.3"]))
+    sample.update(pa.array(["192.0.2.4"]))
+    assert sample.values == ["192.0.2.1", "192.0.2.2"]
+    typed = PersonalSample()
+    typed.update(pa.array([4111111111111111, 5555555555554444]))
+    assert typed.values == [] and typed.finalize() is None
