@@ -120,9 +120,11 @@ class CsvSource(TableSource):
                 parse_options=parse_options,
                 convert_options=convert_options,
             )
+            last: pa.RecordBatch | None = None
             for batch in reader:
                 self._rows_read += batch.num_rows
                 self._count_consumed(batch)
+                last = batch if batch.num_rows else last
                 yield batch
         except ProfileError:
             raise
@@ -132,6 +134,27 @@ class CsvSource(TableSource):
             self.close()
         self._consumed = self.total_bytes
         self._settle_errors()
+        if last is not None:
+            self._check_unclosed_quote(last)
+
+    def _check_unclosed_quote(self, last: pa.RecordBatch) -> None:
+        """Report a quote never closed: it swallows the file's end into one value.
+
+        A properly quoted value ends where its quote closes; one that runs to
+        the end of the file keeps the final line break, which a closed value
+        almost never does.
+        """
+        for name, column in zip(self.column_names, last.columns, strict=True):
+            value = column[last.num_rows - 1].as_py()
+            if value and "\n" in value and value.endswith("\n"):
+                start = value.split("\n")[0][:40]
+                self._errors.add(
+                    None,
+                    f"a quote opened in column {name} of the last row (data row "
+                    f"{self._rows_read}) is never closed; "
+                    f"the rest of the file, from {start!r}, was read as one value",
+                )
+                return
 
     def _count_consumed(self, batch: pa.RecordBatch) -> None:
         """Estimate the file bytes behind the rows handed out so far (for progress)."""

@@ -91,8 +91,10 @@ class JsonlSource(TableSource):
                 continue
             try:
                 value = json.loads(line)
-            except ValueError as exc:
-                self._errors.add(number, f"the line is not valid JSON ({exc.args[0]})")
+            except json.JSONDecodeError as exc:
+                self._errors.add(
+                    number, f"the line is not valid JSON ({exc.msg}, column {exc.colno})"
+                )
                 continue
             if not isinstance(value, dict):
                 self._errors.add(number, "the line holds a JSON value that is not an object")

@@ -100,13 +100,14 @@ def _delimiter(lines: list[str], quotechar: str) -> str:
 def _number_style(cells: list[str]) -> tuple[str, str | None]:
     """The decimal mark and thousands separator most numbers of the sample use."""
     point = comma = 0
-    comma_groups = dot_groups = space_groups = 0
+    comma_groups = dot_groups = 0
+    space: str | None = None
     for raw in cells:
         cell = raw.strip()
         if not cell or not cell[-1].isdigit():
             continue
         if _SPACE_GROUPS.match(cell):
-            space_groups += 1
+            space = space or next(char for char in cell if char in " \u00a0\u202f")
             cell = re.sub(r"[ \u00a0\u202f]", "", cell)
         if _COMMA_GROUPS.match(cell) and (cell.count(",") > 1 or "." in cell):
             comma_groups += 1
@@ -118,8 +119,8 @@ def _number_style(cells: list[str]) -> tuple[str, str | None]:
             comma += 1
     decimal = "," if comma > point else "."
     thousands: str | None = None
-    if space_groups:
-        thousands = " "
+    if space:
+        thousands = space
     if decimal == "." and comma_groups:
         thousands = ","
     elif decimal == "," and dot_groups:

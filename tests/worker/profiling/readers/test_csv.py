@@ -8,6 +8,7 @@ import pandas as pd
 import pyarrow as pa
 import pytest
 
+from worker.profiling.errors import ProfileError
 from worker.profiling.options import ProfileOptions
 from worker.profiling.readers import open_table
 
@@ -179,3 +180,34 @@ def test_legacy_bytes_late_in_the_file_are_found_from_its_end(tmp_path: Path) ->
     source, table = _read(path, sniff_sample_bytes=16 * 1024)
     assert source.info.encoding == "cp1252"
     assert table.column("label").to_pylist()[-1] == "Café crème"
+
+
+def test_a_quote_never_closed_is_reported(tmp_path: Path) -> None:
+    source, table = _read(_write(tmp_path, 'a,b\n1,"x\n2,3\n4,5\n'))
+    assert table.num_rows == 1
+    assert source.parse_error_count == 1
+    assert "never closed" in source.parse_errors[0]["message"]
+
+
+def test_crlf_lines_keep_their_numbers(tmp_path: Path) -> None:
+    source, table = _read(_write(tmp_path, "a,b\r\n1,2\r\n3\r\n4,5\r\n"))
+    assert [error["line"] for error in source.parse_errors] == [3]
+    assert table.column("b").to_pylist() == ["2", "5"]
+
+
+def test_header_only_file_has_columns_and_no_rows(tmp_path: Path) -> None:
+    with open_table(_write(tmp_path, "crate,dock\n")) as source:
+        assert source.column_names == ["crate", "dock"]
+        assert sum(batch.num_rows for batch in source.batches()) == 0
+
+
+def test_invalid_utf8_past_the_samples_is_a_plain_error(tmp_path: Path) -> None:
+    body = "".join(f"{n},plain\n" for n in range(60_000))
+    path = tmp_path / "d.csv"
+    path.write_bytes(b"id,label\n" + body.encode() + b"1,caf\xe9\n" + body.encode())
+    with (
+        pytest.raises(ProfileError, match="cannot be read past row"),
+        open_table(path, options=ProfileOptions(sniff_sample_bytes=8192)) as source,
+    ):
+        for _ in source.batches():
+            pass

@@ -42,3 +42,8 @@ def test_space_thousands() -> None:
 def test_one_column_file_keeps_the_comma_default() -> None:
     dialect = sniff_dialect("label\nred\nblue\n", complete=True)
     assert (dialect.delimiter, dialect.header) == (",", True)
+
+
+def test_no_break_space_thousands_are_reported_as_they_are() -> None:
+    dialect = sniff_dialect("lot;kg\nA;1\u00a0234,5\nB;12\u00a0000,25\n", complete=True)
+    assert (dialect.decimal, dialect.thousands) == (",", "\u00a0")
