@@ -14,6 +14,7 @@ import os
 import threading
 import time
 from collections.abc import Callable, Iterator
+from concurrent.futures import Executor, ThreadPoolExecutor
 from pathlib import Path
 from typing import Any
 
@@ -23,7 +24,8 @@ import pyarrow.compute as pc
 from worker.profiling.columns.column import ColumnState
 from worker.profiling.errors import ProfileError
 from worker.profiling.options import ProfileOptions
-from worker.profiling.prepared import BatchPlan, prepare_batch
+from worker.profiling.prepared import BatchPlan, PreparedColumn, assemble_batch, prepare_column
+from worker.profiling.readers import open_table
 from worker.profiling.relations.duplicates import DuplicateState
 from worker.profiling.relations.state import RelationsState
 
@@ -55,8 +57,9 @@ def profile_file(
         raise ProfileError(f"there is no file at {path.name}")
     digest = _Digest(path)
     report("reading", 0.0)
-    with _open_table(path, options, sheet) as source:
-        profiler = TableProfiler(source.column_names, options, source.info)
+    pool = ThreadPoolExecutor(max_workers=options.threads) if options.threads > 1 else None
+    with open_table(path, options=options, sheet=sheet) as source:
+        profiler = TableProfiler(source.column_names, options, source.info, pool=pool)
         writer = _columnar_writer(columnar_copy)
         try:
             for raw in _batches(source):
@@ -67,6 +70,8 @@ def profile_file(
         finally:
             if writer is not None:
                 writer.close()
+            if pool is not None:
+                pool.shutdown()
         report("summarising", 1.0)
         profile = profiler.finalize()
         profile["source"] = {
@@ -93,8 +98,10 @@ class TableProfiler:
         *,
         first_row: int = 0,
         now: float | None = None,
+        pool: Executor | None = None,
     ) -> None:
         self.options = options
+        self.pool = pool
         self.column_names = list(column_names)
         self.decimal = getattr(info, "decimal", ".") or "."
         self.thousands = getattr(info, "thousands", None)
@@ -124,32 +131,44 @@ class TableProfiler:
         """Add the next batch of rows (in table order)."""
         if raw.num_rows == 0:
             return
-        prepared = prepare_batch(raw, self.first_row + self.rows, self._plan)
+        offset = self.first_row + self.rows
         undecided = [c for c in self.columns.values() if c.candidates is None]
         decided = False
         for state in undecided:
-            text = prepared.text.get(state.name)
             column = raw.column(state.name)
+            prepared = prepare_column(state.name, column, self._plan)
             present = (
-                text.drop_null()
-                if text is not None
-                else pc.filter(column, pa.array(~prepared.missing[state.name]))
+                prepared.text.drop_null()
+                if prepared.text is not None
+                else pc.filter(column, pa.array(~prepared.missing))
             )
             if len(present):
                 state.choose(column, present, self.decimal, self.thousands)
                 decided = True
         if decided:
             self._plan = self._make_plan()
-            prepared = prepare_batch(raw, self.first_row + self.rows, self._plan)
+        plan = self._plan
+
+        def one_column(name: str) -> tuple[str, PreparedColumn]:
+            column = raw.column(name)
+            prepared = prepare_column(name, column, plan)
+            self.columns[name].update(column, prepared)
+            return name, prepared
+
+        prepared_columns = dict(self._map(one_column, self.column_names))
+        batch = assemble_batch(raw, offset, prepared_columns)
         if self.relations is None:
             self.relations = RelationsState(
                 self._relation_numeric(), self._relation_labels(), self.options
             )
-        for state in self.columns.values():
-            state.update(prepared)
-        self.relations.update(prepared)
-        self.duplicates.update(prepared)
+        across = [self.relations.update, self.duplicates.update]
+        list(self._map(lambda update: update(batch), across))
         self.rows += raw.num_rows
+
+    def _map(self, function: Callable[[Any], Any], items: list[Any]) -> Iterator[Any]:
+        if self.pool is None:
+            return map(function, items)
+        return self.pool.map(function, items)
 
     def merge(self, other: TableProfiler) -> TableProfiler:
         """Combine with a profiler of the rows that follow this one's (neither is changed)."""
@@ -300,67 +319,3 @@ def _columnar_writer(path: Path | None) -> Any:
     from worker.profiling.columnar import ColumnarCopy
 
     return ColumnarCopy(path)
-
-
-def _open_table(path: Path, options: ProfileOptions, sheet: str | None) -> Any:
-    try:
-        from worker.profiling.readers import open_table
-    except ImportError:
-        return _CsvText(path)
-    return open_table(path, options=options, sheet=sheet)
-
-
-class _CsvText:
-    """A plain comma-separated UTF-8 reader, all columns as text (until the readers land)."""
-
-    def __init__(self, path: Path) -> None:
-        import csv
-
-        import pyarrow.csv as pacsv
-
-        from worker.profiling.readers.source import SourceInfo
-
-        self.path = path
-        self.total_bytes = path.stat().st_size
-        with path.open(encoding="utf-8-sig", newline="") as handle:
-            header = next(csv.reader(handle), None)
-        if not header:
-            raise ProfileError("the file is empty")
-        self.column_names = header
-        self.info = SourceInfo(format="csv", encoding="utf-8", delimiter=",", quotechar='"')
-        self.parse_errors: list[dict[str, Any]] = []
-        self.parse_error_count = 0
-        self._done = 0
-        try:
-            self._reader = pacsv.open_csv(
-                path,
-                read_options=pacsv.ReadOptions(block_size=1 << 26),
-                convert_options=pacsv.ConvertOptions(
-                    column_types={name: pa.string() for name in header},
-                    strings_can_be_null=True,
-                    null_values=[""],
-                    quoted_strings_can_be_null=True,
-                ),
-            )
-        except (pa.ArrowInvalid, UnicodeDecodeError) as exc:
-            raise ProfileError(f"cannot read the file as a table: {exc}") from exc
-
-    def bytes_read(self) -> int:
-        return self._done
-
-    def batches(self) -> Iterator[pa.RecordBatch]:
-        rows = 0
-        try:
-            for batch in self._reader:
-                rows += batch.num_rows
-                self._done = min(self.total_bytes, self._done + (1 << 26))
-                yield batch
-        except pa.ArrowInvalid as exc:
-            raise ProfileError(f"cannot read the file as a table after row {rows}: {exc}") from exc
-        self._done = self.total_bytes
-
-    def __enter__(self) -> _CsvText:
-        return self
-
-    def __exit__(self, *exc: object) -> None:
-        self._reader.close()

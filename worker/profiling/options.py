@@ -8,6 +8,8 @@ source or says "common practice".
 
 from __future__ import annotations
 
+import os
+
 from pydantic import BaseModel, Field
 
 from worker.profiling.judgement.thresholds import FlagThresholds
@@ -122,10 +124,26 @@ class ProfileOptions(BaseModel):
         10_000, description="Most values a density curve is estimated from (common practice)."
     )
     kde_points: int = Field(128, description="Grid points of a density curve (common practice).")
+    threads: int = Field(
+        default_factory=lambda: max(1, min(4, os.cpu_count() or 1)),
+        ge=1,
+        description="Threads that profile the columns of a batch side by side (the machine's "
+        "cores, at most 4; the Arrow and numpy kernels release the GIL).",
+    )
     pattern_sample: int = Field(
         1_000,
         description="Text values per batch whose character-class shapes are counted "
         "(common practice).",
+    )
+    personal_sample: int = Field(
+        2_000,
+        description="First non-missing values of each text column checked for personal data "
+        "(e-mail, phone, IBAN, card, IP): a share to within about two points (common practice).",
+    )
+    personal_min_share: float = Field(
+        0.5,
+        description="Share of the checked values that must match one kind of personal data "
+        "for the column to be marked (common practice).",
     )
     parse_error_limit: int = Field(
         100,

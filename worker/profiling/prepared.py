@@ -56,6 +56,7 @@ class PreparedBatch:
     ``labels``: label-candidate columns, trimmed text, null where missing.
     ``text``: every text column, trimmed text, null where missing (a superset of ``labels``).
     ``missing_counts``: every column, how its missing cells are missing.
+    ``padded``: every column, how many present cells had leading or trailing whitespace.
     """
 
     raw: pa.RecordBatch
@@ -65,6 +66,7 @@ class PreparedBatch:
     labels: dict[str, pa.Array]
     text: dict[str, pa.Array] = field(default_factory=dict)
     missing_counts: dict[str, MissingCounts] = field(default_factory=dict)
+    padded: dict[str, int] = field(default_factory=dict)
 
     @property
     def num_rows(self) -> int:
@@ -116,65 +118,134 @@ def typed_numbers(array: pa.Array) -> np.ndarray:
     return np.where(np.isfinite(values), values, np.nan)
 
 
+def _lengths(array: pa.Array) -> np.ndarray:
+    """Byte length of every value (0 for null), from the offsets without copying text."""
+    return np.asarray(pc.binary_length(array).fill_null(0).to_numpy(zero_copy_only=False))
+
+
 def _text_missing(
     raw: pa.Array, tokens: tuple[str, ...]
-) -> tuple[pa.Array, np.ndarray, MissingCounts]:
-    trimmed = pc.utf8_trim_whitespace(raw)
-    blank = pc.equal(pc.utf8_length(trimmed), 0)
+) -> tuple[pa.Array, np.ndarray, MissingCounts, int]:
+    """Trimmed text with missing cells as null, the missing mask, its counts, and how
+    many present cells had surrounding whitespace.
+
+    Trimming removes ASCII whitespace (space, tab, line breaks); it is much cheaper
+    than Unicode trimming, and other space characters are rare in delivered files.
+    """
+    trimmed = pc.ascii_trim_whitespace(raw)
+    raw_lengths, lengths = _lengths(raw), _lengths(trimmed)
+    null_np = to_numpy_bool(pc.is_null(raw)) if raw.null_count else np.zeros(len(raw), bool)
+    blank_np = (lengths == 0) & ~null_np
     is_token = pc.is_in(trimmed, value_set=pa.array(tokens, type=trimmed.type))
-    missing = to_numpy_bool(pc.or_(blank, is_token)) | to_numpy_bool(pc.is_null(raw))
+    token_np = to_numpy_bool(is_token)
+    missing = null_np | blank_np | token_np
     token_counts: dict[str, int] = {}
-    token_hits = int(pc.sum(is_token).as_py() or 0)
+    token_hits = int(np.count_nonzero(token_np))
     if token_hits:
         counted = pc.value_counts(pc.filter(trimmed, is_token))
         for item in counted.to_pylist():
             token_counts[item["values"]] = int(item["counts"])
-    counts = MissingCounts(
-        null=raw.null_count, blank=int(pc.sum(blank).as_py() or 0), tokens=token_counts
+    blanks = int(np.count_nonzero(blank_np))
+    counts = MissingCounts(null=raw.null_count, blank=blanks, tokens=token_counts)
+    padded = int(np.count_nonzero((raw_lengths != lengths) & ~missing))
+    cleaned = trimmed
+    if blanks or token_hits:
+        cleaned = pc.if_else(pa.array(missing), pa.scalar(None, trimmed.type), trimmed)
+    return cleaned, missing, counts, padded
+
+
+def _clean_numbers(raw: pa.Array, plan: BatchPlan) -> np.ndarray | None:
+    """Numbers of a text column when every present cell is a plain finite number, else None.
+
+    This fast path skips trimming and token checks: Arrow's cast refuses blanks,
+    whitespace and words, so a successful cast means there are none.
+    """
+    text = raw
+    if plan.thousands:
+        text = pc.replace_substring(text, plan.thousands, "")
+    if plan.decimal != ".":
+        text = pc.replace_substring(text, plan.decimal, ".")
+    try:
+        parsed = pc.cast(text, pa.float64())
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+        return None
+    values = np.asarray(parsed.to_numpy(zero_copy_only=False), dtype=np.float64)
+    if np.count_nonzero(~np.isfinite(values)) != raw.null_count:
+        return None  # "nan", "inf" and the like take the careful path
+    return values
+
+
+@dataclass(frozen=True)
+class PreparedColumn:
+    """One column of a prepared batch (see ``PreparedBatch`` for the fields)."""
+
+    missing: np.ndarray
+    counts: MissingCounts
+    numbers: np.ndarray | None = None
+    labels: pa.Array | None = None
+    text: pa.Array | None = None
+    padded: int = 0
+
+
+def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColumn:
+    """Trim, mark missing cells and parse numbers of one column of a batch."""
+    if is_text_type(column.type) and name in plan.numeric and name not in plan.labels:
+        numbers = _clean_numbers(column, plan)
+        if numbers is not None:
+            mask = (
+                to_numpy_bool(pc.is_null(column))
+                if column.null_count
+                else np.zeros(len(column), bool)
+            )
+            detail = MissingCounts(null=column.null_count, blank=0, tokens={})
+            return PreparedColumn(missing=mask, counts=detail, numbers=numbers, text=column)
+    if is_text_type(column.type):
+        cleaned, mask, detail, padded = _text_missing(column, plan.missing_tokens)
+        numbers = None
+        if name in plan.numeric:
+            numbers = parse_numbers(cleaned, decimal=plan.decimal, thousands=plan.thousands)
+        return PreparedColumn(
+            missing=mask,
+            counts=detail,
+            numbers=numbers,
+            labels=cleaned if name in plan.labels else None,
+            text=cleaned,
+            padded=padded,
+        )
+    mask = to_numpy_bool(pc.is_null(column)) if column.null_count else np.zeros(len(column), bool)
+    if pat.is_floating(column.type):
+        mask = mask | to_numpy_bool(pc.is_nan(column))
+    detail = MissingCounts(null=int(mask.sum()), blank=0, tokens={})
+    numbers = labels = None
+    if name in plan.numeric and (
+        pat.is_integer(column.type) or pat.is_floating(column.type) or pat.is_decimal(column.type)
+    ):
+        numbers = typed_numbers(column)
+    if name in plan.labels:
+        labels = pc.cast(column, pa.string())
+    return PreparedColumn(missing=mask, counts=detail, numbers=numbers, labels=labels, text=labels)
+
+
+def assemble_batch(
+    raw: pa.RecordBatch, offset: int, columns: dict[str, PreparedColumn]
+) -> PreparedBatch:
+    """A ``PreparedBatch`` from its prepared columns (in the batch's column order)."""
+    return PreparedBatch(
+        raw=raw,
+        offset=offset,
+        missing={name: c.missing for name, c in columns.items()},
+        numbers={name: c.numbers for name, c in columns.items() if c.numbers is not None},
+        labels={name: c.labels for name, c in columns.items() if c.labels is not None},
+        text={name: c.text for name, c in columns.items() if c.text is not None},
+        missing_counts={name: c.counts for name, c in columns.items()},
+        padded={name: c.padded for name, c in columns.items()},
     )
-    cleaned = pc.if_else(pa.array(missing), pa.scalar(None, trimmed.type), trimmed)
-    return cleaned, missing, counts
 
 
 def prepare_batch(raw: pa.RecordBatch, offset: int, plan: BatchPlan) -> PreparedBatch:
     """Trim, mark missing cells and parse numbers once for the whole batch."""
-    missing: dict[str, np.ndarray] = {}
-    numbers: dict[str, np.ndarray] = {}
-    labels: dict[str, pa.Array] = {}
-    text: dict[str, pa.Array] = {}
-    counts: dict[str, MissingCounts] = {}
-    for name, column in zip(raw.schema.names, raw.columns, strict=True):
-        if is_text_type(column.type):
-            cleaned, mask, detail = _text_missing(column, plan.missing_tokens)
-            text[name] = cleaned
-            if name in plan.numeric:
-                numbers[name] = parse_numbers(
-                    cleaned, decimal=plan.decimal, thousands=plan.thousands
-                )
-            if name in plan.labels:
-                labels[name] = cleaned
-        else:
-            mask = to_numpy_bool(pc.is_null(column))
-            if pat.is_floating(column.type):
-                mask = mask | to_numpy_bool(pc.is_nan(column))
-            detail = MissingCounts(null=int(mask.sum()), blank=0, tokens={})
-            if name in plan.numeric and (
-                pat.is_integer(column.type)
-                or pat.is_floating(column.type)
-                or pat.is_decimal(column.type)
-            ):
-                numbers[name] = typed_numbers(column)
-            if name in plan.labels:
-                labels[name] = pc.cast(column, pa.string())
-                text[name] = labels[name]
-        missing[name] = mask
-        counts[name] = detail
-    return PreparedBatch(
-        raw=raw,
-        offset=offset,
-        missing=missing,
-        numbers=numbers,
-        labels=labels,
-        text=text,
-        missing_counts=counts,
-    )
+    columns = {
+        name: prepare_column(name, column, plan)
+        for name, column in zip(raw.schema.names, raw.columns, strict=True)
+    }
+    return assemble_batch(raw, offset, columns)

@@ -9,14 +9,15 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from worker.profiling.columns.datetime import DatetimeState
-from worker.profiling.columns.distinct import DistinctState, hash_values
+from worker.profiling.columns.distinct import DistinctState
 from worker.profiling.columns.kinds import Candidates, KindCounts, choose_candidates, decide_kind
 from worker.profiling.columns.labels import LabelState
 from worker.profiling.columns.missing import MissingState
 from worker.profiling.columns.numeric import NumericState
 from worker.profiling.columns.text import TextState
 from worker.profiling.options import ProfileOptions
-from worker.profiling.prepared import PreparedBatch
+from worker.profiling.personal import PersonalSample
+from worker.profiling.prepared import PreparedColumn
 
 
 class ColumnState:
@@ -36,6 +37,7 @@ class ColumnState:
         self.labels: LabelState | None = None
         self.dates: DatetimeState | None = None
         self.text: TextState | None = None
+        self.personal = PersonalSample(options.personal_sample)
 
     def choose(self, column: pa.Array, present: pa.Array, decimal: str, thousands: str | None):
         """Decide the candidate parsers from the column's first non-missing values."""
@@ -58,45 +60,60 @@ class ColumnState:
                 exact_bound=options.exact_bound,
                 kll_k=options.kll_k,
             )
-        if self.candidates.text:
+        # Lengths and shapes describe text; numbers or dates written as text skip them.
+        candidates = self.candidates
+        if candidates.text and candidates.number_share <= 0.5 and not candidates.date_formats:
             self.text = TextState(options.pattern_sample)
 
-    def update(self, batch: PreparedBatch) -> None:
-        name = self.name
-        raw = batch.raw.column(name)
+    def update(self, raw: pa.Array, prepared: PreparedColumn) -> None:
+        """Add one batch of this column: the reader's array and its prepared form."""
         if self.physical_type is None:
             self.physical_type = str(raw.type)
-        missing = batch.missing[name]
-        self.missing.update(batch.missing_counts[name], batch.num_rows)
-        present_count = int(batch.num_rows - np.count_nonzero(missing))
+        missing = prepared.missing
+        self.missing.update(prepared.counts, len(raw))
+        self.personal.update(raw, missing)
+        present_count = len(raw) - prepared.counts.total
         if self.candidates is None:
             self.kinds.update(present_count, None, None)
             return
-        text = batch.text.get(name)
-        numbers = batch.numbers.get(name)
+        text, numbers = prepared.text, prepared.numbers
         self.kinds.update(present_count, numbers, text)
         if present_count == 0:
             return
-        if text is not None:
-            self.distinct.update(hash_values(text))
-        elif numbers is not None:
-            self.distinct.update(hash_values(numbers))
-        else:
-            self.distinct.update(hash_values(pc.cast(raw, pa.string())))
         if self.numeric is not None and numbers is not None:
             self.numeric.update(numbers)
-        if self.labels is not None:
-            if self.text is not None:
+        labels = self.labels
+        if labels is not None:
+            if self.candidates.text:
                 # Labels are counted as written, so "active " and "Active" stay apart
                 # and show up as variants.
-                labels = pc.if_else(pa.array(missing), pa.scalar(None, raw.type), raw)
+                written = raw
+                if prepared.counts.total:
+                    written = pc.if_else(pa.array(missing), pa.scalar(None, raw.type), raw)
             else:
-                labels = batch.labels[name]
-            self.labels.update(labels)
+                written = prepared.labels
+            was_exact = labels.exact
+            overflow = labels.update(written)
+            if overflow is not None:
+                # The label counts just became a summary: from here on the distinct
+                # count needs hashes, starting with every label seen so far.
+                self.distinct.update(pa.array(overflow, type=pa.string()))
+            if not was_exact or overflow is not None:
+                self._hash(raw, text, numbers)
+        else:
+            self._hash(raw, text, numbers)
         if self.dates is not None:
             self.dates.update(text if text is not None else raw)
         if self.text is not None:
-            self.text.update(raw, missing)
+            self.text.update(raw, missing, prepared.padded)
+
+    def _hash(self, raw: pa.Array, text: pa.Array | None, numbers: np.ndarray | None) -> None:
+        if numbers is not None and (not self.candidates.text or self.candidates.number_share > 0.5):
+            self.distinct.update(numbers)
+        elif text is not None:
+            self.distinct.update(text)
+        else:
+            self.distinct.update(pc.cast(raw, pa.string()))
 
     def merge(self, other: ColumnState) -> ColumnState:
         """Combine with the same column's state over other rows."""
@@ -106,6 +123,7 @@ class ColumnState:
         out.missing = self.missing.merge(other.missing)
         out.kinds = self.kinds.merge(other.kinds)
         out.distinct = self.distinct.merge(other.distinct)
+        out.personal = self.personal.merge(other.personal)
         for attr in ("numeric", "labels", "dates", "text"):
             mine, theirs = getattr(self, attr), getattr(other, attr)
             if mine is not None and theirs is not None:
@@ -119,6 +137,8 @@ class ColumnState:
         options = self.options
         missing = self.missing.finalize()
         distinct = self.distinct.finalize()
+        if self.labels is not None and self.labels.exact:
+            distinct = {"distinct": len(self.labels.counts), "distinct_exact": True}
         text = self.text.finalize() if self.text is not None else None
         dates = self.dates.finalize() if self.dates is not None else None
         inner_space = bool(
@@ -169,4 +189,5 @@ class ColumnState:
             "labels": labels,
             "datetime": dates if kind == "datetime" else None,
             "text": text,
+            "personal": self.personal.finalize(options.personal_min_share),
         }

@@ -61,6 +61,10 @@ _GRAINS = ("year", "month", "day", "hour", "minute", "second")
 
 def parse_dates(text: pa.Array, fmt: str) -> pa.Array:
     """Parse text in one format; null where it does not fit (seconds resolution)."""
+    return _strptime(text, fmt)
+
+
+def _strptime(text: pa.Array, fmt: str) -> pa.Array:
     if "T%H" in fmt or ("%H:%M:%S" in fmt and fmt.startswith("%Y")):
         text = pc.replace_substring_regex(text, _ISO_TAIL, "")
     return pc.strptime(text, format=fmt, unit="s", error_is_null=True)
@@ -72,7 +76,7 @@ def candidate_formats(sample: pa.Array, min_share: float = 0.05) -> list[str]:
         return []
     shares = []
     for fmt, _order in DATE_FORMATS:
-        parsed = parse_dates(sample, fmt)
+        parsed = _strptime(sample, fmt)
         shares.append((1.0 - parsed.null_count / len(sample), fmt))
     shares.sort(key=lambda item: -item[0])
     best_share, best = shares[0]

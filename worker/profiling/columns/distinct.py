@@ -1,10 +1,9 @@
 """Distinct values of a column: exact up to a bound, then a HyperLogLog.
 
-Values are hashed to 64 bits (polars' vectorised hash, one fixed seed everywhere so
-states from different workers agree). While few, the distinct hashes are kept
-exactly (a 64-bit collision among a million values has odds near 1e-8); above
-the bound a HyperLogLog with 2^precision one-byte registers takes over, updated
-with numpy (``np.maximum.at`` over register indexes), never a loop per value.
+While few, the distinct values are kept exactly. Above the bound they are
+hashed to 64 bits (polars' vectorised hash, one fixed seed everywhere so states
+from different workers agree) into a HyperLogLog of 2^precision one-byte
+registers, updated with numpy (``np.maximum.at`` over register indexes), never a loop per value.
 Its relative standard error is 1.04 / sqrt(2^precision) (0.41 % at precision 16).
 
 References: P. Flajolet, É. Fusy, O. Gandouet and F. Meunier, "HyperLogLog: the
@@ -28,13 +27,9 @@ _SEED = 0x7469646577616974
 
 def hash_values(values: pa.Array | np.ndarray) -> np.ndarray:
     """64-bit hashes of the non-null values (text or numbers), as uint64."""
-    if isinstance(values, np.ndarray):
-        series = pl.Series(values[~np.isnan(values)] if values.dtype.kind == "f" else values)
-    else:
-        series = pl.from_arrow(values.drop_null() if values.null_count else values)
+    series = pl.from_arrow(_present(values))
     if series.dtype == pl.Float64:
-        # -0.0 and 0.0 are one number.
-        series = series + 0.0
+        series = series + 0.0  # -0.0 and 0.0 are one number
     return series.hash(seed=_SEED).to_numpy()
 
 
@@ -46,35 +41,46 @@ def _bit_length(words: np.ndarray) -> np.ndarray:
 
 
 class DistinctState:
-    """Distinct count of 64-bit hashes; exact below ``exact_bound``, HyperLogLog above."""
+    """Distinct values of a column; exact below ``exact_bound``, a HyperLogLog above.
+
+    While exact, the distinct values themselves are kept (Arrow's hash-based
+    ``unique``, no hashing step); past the bound they are hashed into the
+    registers and every later batch is hashed.
+    """
 
     def __init__(self, exact_bound: int, precision: int = 16) -> None:
         self.exact_bound = exact_bound
         self.precision = precision
-        self._hashes: np.ndarray | None = np.empty(0, dtype=np.uint64)
+        self._values: pa.Array | None = None
         self._registers: np.ndarray | None = None
 
     @property
     def exact(self) -> bool:
-        return self._hashes is not None
+        return self._registers is None
 
-    def update(self, hashes: np.ndarray) -> None:
-        if hashes.size == 0:
+    def update(self, values: pa.Array | np.ndarray) -> None:
+        """Add the non-missing values of a batch (text as Arrow, numbers as numpy)."""
+        values = _present(values)
+        if len(values) == 0:
             return
-        if self._hashes is not None:
-            batch = pc.unique(pa.array(hashes)).to_numpy()
-            joined = np.concatenate([self._hashes, batch])
-            self._hashes = pc.unique(pa.array(joined)).to_numpy() if self._hashes.size else batch
-            if self._hashes.size > self.exact_bound:
-                self._to_sketch()
+        if self._registers is not None:
+            self._add_to_registers(hash_values(values))
             return
-        self._add_to_registers(hashes)
+        batch = pc.unique(values)
+        if self._values is None:
+            self._values = batch
+        else:
+            if batch.type != self._values.type:
+                batch = batch.cast(self._values.type)
+            self._values = pc.unique(pa.concat_arrays([self._values, batch]))
+        if len(self._values) > self.exact_bound:
+            self._to_sketch()
 
     def _to_sketch(self) -> None:
         self._registers = np.zeros(1 << self.precision, dtype=np.uint8)
-        assert self._hashes is not None
-        self._add_to_registers(self._hashes)
-        self._hashes = None
+        if self._values is not None:
+            self._add_to_registers(hash_values(self._values))
+        self._values = None
 
     def _add_to_registers(self, hashes: np.ndarray) -> None:
         assert self._registers is not None
@@ -86,25 +92,26 @@ class DistinctState:
 
     def merge(self, other: DistinctState) -> DistinctState:
         out = DistinctState(self.exact_bound, self.precision)
-        if self._hashes is not None and other._hashes is not None:
-            out._hashes = np.unique(np.concatenate([self._hashes, other._hashes]))
-            if out._hashes.size > out.exact_bound:
-                out._to_sketch()
+        if self.exact and other.exact:
+            parts = [v for v in (self._values, other._values) if v is not None]
+            if parts:
+                if len(parts) == 2 and parts[1].type != parts[0].type:
+                    parts[1] = parts[1].cast(parts[0].type)
+                out._values = pc.unique(pa.concat_arrays(parts))
+                if len(out._values) > out.exact_bound:
+                    out._to_sketch()
             return out
-        out._hashes = None
         out._registers = np.zeros(1 << self.precision, dtype=np.uint8)
         for part in (self, other):
             if part._registers is not None:
                 np.maximum(out._registers, part._registers, out=out._registers)
-            else:
-                assert part._hashes is not None
-                out._add_to_registers(part._hashes)
+            elif part._values is not None:
+                out._add_to_registers(hash_values(part._values))
         return out
 
     def estimate(self) -> int:
-        if self._hashes is not None:
-            return int(self._hashes.size)
-        assert self._registers is not None
+        if self._registers is None:
+            return 0 if self._values is None else len(self._values)
         m = float(self._registers.size)
         alpha = 0.7213 / (1.0 + 1.079 / m)
         raw = alpha * m * m / float(np.sum(np.exp2(-self._registers.astype(np.float64))))
@@ -118,3 +125,11 @@ class DistinctState:
         if not self.exact:
             out["distinct_relative_error"] = 1.04 / math.sqrt(1 << self.precision)
         return out
+
+
+def _present(values: pa.Array | np.ndarray) -> pa.Array:
+    if isinstance(values, np.ndarray):
+        if values.dtype.kind == "f":
+            values = values[~np.isnan(values)] + 0.0  # -0.0 and 0.0 are one number
+        return pa.array(values)
+    return values.drop_null() if values.null_count else values

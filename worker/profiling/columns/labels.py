@@ -49,11 +49,16 @@ class LabelState:
     def exact(self) -> bool:
         return self.count_error == 0
 
-    def update(self, labels: pa.Array) -> None:
-        """Count the non-null labels of one batch."""
+    def update(self, labels: pa.Array) -> list[str] | None:
+        """Count the non-null labels of one batch.
+
+        Returns every label counted so far when this batch turned the exact counts
+        into a summary (so a distinct count can start from them), else None.
+        """
         present = labels.drop_null() if labels.null_count else labels
         if len(present) == 0:
-            return
+            return None
+        was_exact = self.exact
         counted = pc.value_counts(present)
         values = counted.field("values")
         counts = counted.field("counts").to_numpy()
@@ -66,7 +71,9 @@ class LabelState:
             counts = counts[keep] - floor
             values = values.take(pa.array(keep))
         self.counts.update(dict(zip(values.to_pylist(), counts.tolist(), strict=True)))
+        seen = list(self.counts) if was_exact else None
         self._prune()
+        return seen if was_exact and not self.exact else None
 
     def _prune(self) -> None:
         if len(self.counts) <= self.exact_bound:

@@ -45,9 +45,14 @@ class TextState:
         self.patterns: Counter[str] = Counter()
         self.sampled = 0
 
-    def update(self, raw: pa.Array, missing: np.ndarray) -> None:
-        """Add the raw (untrimmed) text of one batch; ``missing`` marks cells to skip."""
-        present = raw.filter(pa.array(~missing)) if missing.any() else raw
+    def update(self, raw: pa.Array, missing: np.ndarray, padded: int | None = None) -> None:
+        """Add the raw (untrimmed) text of one batch; ``missing`` marks cells to skip.
+
+        ``padded``, when known, is how many present cells have surrounding whitespace;
+        at 0 the trimming for the whitespace counts is skipped.
+        """
+        any_missing = bool(missing.any())
+        present = raw.filter(pa.array(~missing)) if any_missing else raw
         if len(present) == 0:
             return
         lengths = pc.utf8_length(present)
@@ -56,9 +61,13 @@ class TextState:
         self.total_length += int(pc.sum(lengths).as_py())
         self.min_length = _fold(min, self.min_length, low.as_py())
         self.max_length = _fold(max, self.max_length, high.as_py())
-        self.leading += _count_changed(lengths, pc.utf8_ltrim_whitespace(present))
-        self.trailing += _count_changed(lengths, pc.utf8_rtrim_whitespace(present))
-        sample = present.slice(0, self.pattern_sample)
+        if padded is None or padded:
+            self.leading += _count_changed(lengths, pc.utf8_ltrim_whitespace(present))
+            self.trailing += _count_changed(lengths, pc.utf8_rtrim_whitespace(present))
+        room = self.pattern_sample * 10 - self.sampled
+        if room <= 0:
+            return
+        sample = present.slice(0, min(self.pattern_sample, room))
         counted = pc.value_counts(shapes(sample))
         self.patterns.update(
             dict(
