@@ -3,7 +3,22 @@
 from fastapi import APIRouter, Depends
 
 from server.api.deps import AdminForChanges, current_user
-from server.api.routes import audit, auth, health, intakes, privacy, suppliers, tokens, users
+from server.api.routes import (
+    audit,
+    auth,
+    comments,
+    decisions,
+    drift,
+    health,
+    history,
+    intakes,
+    judgement,
+    privacy,
+    rules,
+    suppliers,
+    tokens,
+    users,
+)
 
 API_PREFIX = "/api/v1"
 
@@ -12,6 +27,12 @@ API_PREFIX = "/api/v1"
 api_router = APIRouter(prefix=API_PREFIX, dependencies=[Depends(current_user)])
 api_router.include_router(intakes.router)
 api_router.include_router(suppliers.router, dependencies=[AdminForChanges])
+api_router.include_router(judgement.router)
+api_router.include_router(drift.router)
+api_router.include_router(decisions.router)
+api_router.include_router(comments.router)
+api_router.include_router(rules.router)
+api_router.include_router(history.router)
 
 api_router.include_router(users.router)
 api_router.include_router(audit.router)
