@@ -14,6 +14,7 @@ from server.api.routes import (
     intakes,
     judgement,
     privacy,
+    queries,
     rules,
     suppliers,
     tokens,
@@ -26,6 +27,7 @@ API_PREFIX = "/api/v1"
 # admin routers add their own ``RequireAdmin``.
 api_router = APIRouter(prefix=API_PREFIX, dependencies=[Depends(current_user)])
 api_router.include_router(intakes.router)
+api_router.include_router(queries.router)
 api_router.include_router(suppliers.router, dependencies=[AdminForChanges])
 api_router.include_router(judgement.router)
 api_router.include_router(drift.router)

@@ -1,4 +1,4 @@
-"""Server-rendered pages: intake list, upload form, intake page; static files.
+"""Server-rendered pages: intakes, upload, suppliers, downloads; static files.
 
 Templates live in ``web/templates`` and are autoescaped. plotly.min.js is
 served from the installed plotly package, so pages work with no internet.
@@ -15,6 +15,7 @@ from fastapi.staticfiles import StaticFiles
 
 from server.api.deps import current_user
 from server.pages.account import router as account_router
+from server.pages.downloads import router as downloads_router
 from server.pages.intakes import router as intakes_router
 
 WEB_DIR = Path(__file__).resolve().parents[2] / "web"
@@ -37,4 +38,5 @@ def install_pages(app: FastAPI) -> None:
     # account pages (sign-in itself, sign-out, own tokens) check their callers themselves.
     app.include_router(account_router)
     app.include_router(intakes_router, dependencies=[Depends(current_user)])
+    app.include_router(downloads_router, dependencies=[Depends(current_user)])
     app.mount("/static", StaticFiles(directory=WEB_DIR / "static", check_dir=False), name="static")

@@ -1,20 +1,32 @@
-"""Pages for intakes: the list, the upload form and one intake."""
+"""Pages for intakes: the list, the upload form and the intake page."""
 
 from __future__ import annotations
 
+from datetime import date
+
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import HTMLResponse
-from sqlalchemy import func, select
-from sqlalchemy.orm import selectinload
+from sqlalchemy import select
 
 from server.api.deps import CurrentUser, SessionDep, SettingsDep
 from server.api.errors import ApiError
+from server.pages.intake_view import intake_context
+from server.pages.listing import SORTS, STATUSES, ListFilters, intake_page
 from server.pages.templating import templates
-from server.store import Intake, Profile, Supplier
+from server.store import Intake, Supplier
 
 router = APIRouter(include_in_schema=False)
 
-PAGE_SIZE = 50
+
+def _date(value: str | None) -> date | None:
+    try:
+        return date.fromisoformat(value) if value else None
+    except ValueError:
+        return None
+
+
+def _int(value: str | None) -> int | None:
+    return int(value) if value and value.isdigit() else None
 
 
 @router.get("/", response_class=HTMLResponse)
@@ -22,36 +34,39 @@ def intake_list(
     request: Request,
     session: SessionDep,
     user: CurrentUser,
-    supplier: int | None = Query(None),
+    supplier: str | None = Query(None),
+    status: str | None = Query(None),
+    since: str | None = Query(None),
+    until: str | None = Query(None),
+    name: str = Query("", max_length=200),
+    sort: str = Query("newest"),
     page: int = Query(1, ge=1),
 ) -> HTMLResponse:
-    """Every intake, newest first, with status and headline figures."""
-    where = [] if supplier is None else [Intake.supplier_id == supplier]
-    total = session.scalar(select(func.count()).select_from(Intake).where(*where)) or 0
-    intakes = session.scalars(
-        select(Intake)
-        .where(*where)
-        .options(
-            selectinload(Intake.supplier),
-            selectinload(Intake.profile).load_only(
-                Profile.rows, Profile.columns, Profile.overall_score
-            ),
-        )
-        .order_by(Intake.created_at.desc(), Intake.id.desc())
-        .limit(PAGE_SIZE)
-        .offset((page - 1) * PAGE_SIZE)
-    ).all()
+    """Every intake, filtered by supplier, status, date and name, sorted, a page at a time.
+
+    Unusable filter values (a malformed date, an unknown sort) are ignored rather
+    than refused, so a hand-edited address still shows a list.
+    """
+    filters = ListFilters(
+        supplier=_int(supplier),
+        status=status if status in STATUSES else None,
+        since=_date(since),
+        until=_date(until),
+        name=name,
+        sort=sort if sort in SORTS else "newest",
+        page=page,
+    )
+    listing = intake_page(session, filters)
     suppliers = session.scalars(select(Supplier).order_by(Supplier.name)).all()
     return templates.TemplateResponse(
         request,
         "intakes.html",
         {
-            "intakes": intakes,
+            "listing": listing,
+            "filters": filters,
             "suppliers": suppliers,
-            "supplier": supplier,
-            "page": page,
-            "pages": max(1, -(-total // PAGE_SIZE)),
-            "total": total,
+            "sorts": SORTS,
+            "statuses": STATUSES,
             "user": user,
         },
     )
@@ -59,27 +74,40 @@ def intake_list(
 
 @router.get("/upload", response_class=HTMLResponse)
 def upload_form(
-    request: Request, session: SessionDep, settings: SettingsDep, user: CurrentUser
+    request: Request,
+    session: SessionDep,
+    settings: SettingsDep,
+    user: CurrentUser,
+    supplier: str | None = Query(None),
 ) -> HTMLResponse:
-    """The form that sends a file to ``POST /api/v1/intakes``, with upload progress."""
+    """The upload form: pick or create the supplier, drop a file, follow its progress."""
     suppliers = session.scalars(select(Supplier).order_by(Supplier.name)).all()
     return templates.TemplateResponse(
         request,
         "upload.html",
-        {"suppliers": suppliers, "limit_bytes": settings.upload_limit_bytes, "user": user},
+        {
+            "suppliers": suppliers,
+            "chosen": _int(supplier),
+            "limit_bytes": settings.upload_limit_bytes,
+            "user": user,
+        },
     )
 
 
 @router.get("/intakes/{intake_id}", response_class=HTMLResponse)
-def intake_page(
-    intake_id: int, request: Request, session: SessionDep, user: CurrentUser
+def intake_page_view(
+    intake_id: int,
+    request: Request,
+    session: SessionDep,
+    settings: SettingsDep,
+    user: CurrentUser,
+    baseline: str | None = Query(None),
 ) -> HTMLResponse:
-    """One intake: status and progress while it is profiled, headline figures once ready."""
+    """One intake, organised around the decision; its progress while it is profiled."""
     intake = session.get(Intake, intake_id)
     if intake is None:
         raise ApiError(404, f"there is no intake {intake_id}", code="not_found")
-    return templates.TemplateResponse(
-        request,
-        "intake.html",
-        {"intake": intake, "profile": intake.profile, "user": user},
-    )
+    context = {"intake": intake, "user": user, "ready": intake.profile is not None}
+    if intake.profile is not None:
+        context.update(intake_context(session, intake, settings, _int(baseline)))
+    return templates.TemplateResponse(request, "intake.html", context)

@@ -1,34 +1,38 @@
-"""The Jinja2 environment of the pages: templates from ``web/templates``, autoescaped."""
+"""The Jinja2 environment of the pages: templates from ``web/templates``, autoescaped.
+
+The same filters as the standalone report (numbers, shares, score bands), so a
+column card looks the same in both. Pages carry no inline script (the
+Content-Security-Policy forbids it): data for scripts travels in
+``<script type="application/json">`` elements and ``data-`` attributes.
+"""
 
 from __future__ import annotations
 
-from pathlib import Path
+from datetime import datetime
 
 from fastapi.templating import Jinja2Templates
 from jinja2 import Environment, FileSystemLoader, select_autoescape
 
-TEMPLATES_DIR = Path(__file__).resolve().parents[2] / "web" / "templates"
+from server.pages.profile_view import file_size
+from server.pages.rendering import TEMPLATE_DIR, add_profile_filters
 
 
-def _percent(value: float | None, digits: int = 0) -> str:
-    return "–" if value is None else f"{value:.{digits}%}"
+def _when(value: datetime | None) -> str:
+    return "–" if value is None else value.strftime("%Y-%m-%d %H:%M")
 
 
-def _bytes(value: int | None) -> str:
-    if value is None:
-        return "–"
-    size = float(value)
-    for unit in ("bytes", "KB", "MB", "GB"):
-        if size < 1024 or unit == "GB":
-            return f"{size:,.0f} {unit}" if unit == "bytes" else f"{size:,.1f} {unit}"
-        size /= 1024
-    return f"{size:,.1f} GB"
+def _filesize(value: int | None) -> str:
+    return "–" if value is None else file_size(int(value))
 
 
-environment = Environment(
-    loader=FileSystemLoader(TEMPLATES_DIR),
-    autoescape=select_autoescape(["html", "xml"], default_for_string=True, default=True),
+environment = add_profile_filters(
+    Environment(
+        loader=FileSystemLoader(TEMPLATE_DIR),
+        autoescape=select_autoescape(default=True, default_for_string=True),
+        trim_blocks=True,
+        lstrip_blocks=True,
+    )
 )
-environment.filters["percent"] = _percent
-environment.filters["filesize"] = _bytes
+environment.filters["filesize"] = _filesize
+environment.filters["when"] = _when
 templates = Jinja2Templates(env=environment)
