@@ -23,6 +23,7 @@ import pyarrow.compute as pc
 
 from worker.profiling.columns.column import ColumnState
 from worker.profiling.errors import ProfileError
+from worker.profiling.limits import check_cells, check_columns
 from worker.profiling.options import ProfileOptions
 from worker.profiling.prepared import BatchPlan, PreparedColumn, assemble_batch, prepare_column
 from worker.profiling.readers import open_table
@@ -59,10 +60,12 @@ def profile_file(
     report("reading", 0.0)
     pool = ThreadPoolExecutor(max_workers=options.threads) if options.threads > 1 else None
     with open_table(path, options=options, sheet=sheet) as source:
+        check_columns(source.column_names, options)
         profiler = TableProfiler(source.column_names, options, source.info, pool=pool)
         writer = _columnar_writer(columnar_copy)
         try:
             for raw in _batches(source):
+                check_cells(raw, options)
                 profiler.update(raw)
                 if writer is not None:
                     writer.write(raw)

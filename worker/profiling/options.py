@@ -145,6 +145,16 @@ class ProfileOptions(BaseModel):
         description="Share of the checked values that must match one kind of personal data "
         "for the column to be marked (common practice).",
     )
+    max_columns: int = Field(
+        5_000,
+        description="Most columns a file may have; more are refused with a plain error "
+        "(common practice; spreadsheets stop at 16,384, recalled from memory).",
+    )
+    max_cell_chars: int = Field(
+        1_000_000,
+        description="Longest text cell accepted, in characters; a longer one ends profiling with "
+        "a plain error (common practice; spreadsheet cells hold at most 32,767, from memory).",
+    )
     parse_error_limit: int = Field(
         100,
         ge=0,
