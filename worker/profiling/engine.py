@@ -173,6 +173,19 @@ class TableProfiler:
             return map(function, items)
         return self.pool.map(function, items)
 
+    def follow(self, leader: TableProfiler) -> None:
+        """Use the candidate parsers that ``leader``, a profiler of the first rows of the
+        same table, chose; chunks profiled apart then merge column by column."""
+        for name, state in self.columns.items():
+            candidates = leader.columns[name].candidates
+            if candidates is not None and state.candidates is None:
+                state.start(candidates)
+        self._plan = self._make_plan()
+        if leader.relations is not None and self.relations is None:
+            self.relations = RelationsState(
+                leader.relations.numeric, leader.relations.labels, self.options
+            )
+
     def merge(self, other: TableProfiler) -> TableProfiler:
         """Combine with a profiler of the rows that follow this one's (neither is changed)."""
         out = copy.copy(self)

@@ -41,14 +41,19 @@ class ColumnState:
 
     def choose(self, column: pa.Array, present: pa.Array, decimal: str, thousands: str | None):
         """Decide the candidate parsers from the column's first non-missing values."""
-        options = self.options
-        self.candidates = choose_candidates(
+        candidates = choose_candidates(
             column,
             present,
             decimal=decimal,
             thousands=thousands,
-            label_candidate_max=options.label_candidate_max,
+            label_candidate_max=self.options.label_candidate_max,
         )
+        self.start(candidates)
+
+    def start(self, candidates: Candidates) -> None:
+        """Start the parsers of the given candidates (chosen here or by another worker)."""
+        options = self.options
+        self.candidates = candidates
         if self.candidates.numeric:
             self.numeric = NumericState(options)
         if self.candidates.labels:
@@ -61,7 +66,6 @@ class ColumnState:
                 kll_k=options.kll_k,
             )
         # Lengths and shapes describe text; numbers or dates written as text skip them.
-        candidates = self.candidates
         if candidates.text and candidates.number_share <= 0.5 and not candidates.date_formats:
             self.text = TextState(options.pattern_sample)
 
