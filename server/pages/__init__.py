@@ -31,9 +31,19 @@ def plotly_js() -> FileResponse:
     )
 
 
+def favicon() -> FileResponse:
+    """The tab icon, for browsers that ask for /favicon.ico whatever the page says."""
+    return FileResponse(
+        WEB_DIR / "static" / "favicon.svg",
+        media_type="image/svg+xml",
+        headers={"Cache-Control": "public, max-age=86400"},
+    )
+
+
 def install_pages(app: FastAPI) -> None:
     """Add the page routes and the static files to ``app``."""
     app.add_api_route("/static/vendor/plotly.min.js", plotly_js, include_in_schema=False)
+    app.add_api_route("/favicon.ico", favicon, include_in_schema=False)
     # Page routers sit behind sign-in (an anonymous browser is sent to /sign-in); the
     # account pages (sign-in itself, sign-out, own tokens) check their callers themselves.
     app.include_router(account_router)

@@ -20,6 +20,7 @@ from server.pages.profile_view import (
     flag_groups,
     score_rows,
 )
+from server.pages.review_view import VERDICT_WORDS, flag_key, judged_profile, review
 from server.security.masking import visible_profile
 from server.settings import Settings
 from server.store import Intake, IntakeStatus, Profile
@@ -82,19 +83,31 @@ def label_columns(profile: dict[str, Any]) -> list[str]:
     ]
 
 
-def intake_context(
-    session: Session, intake: Intake, settings: Settings, baseline_id: int | None
-) -> dict[str, Any]:
-    """Everything the intake page shows for a profiled intake."""
+def intake_context(session: Session, intake: Intake, settings: Settings) -> dict[str, Any]:
+    """Everything the intake page shows for a profiled intake.
+
+    Flags, score, suggested verdict and drift come from the intake's judgement
+    (rules and baseline included) when it has one; otherwise from the profile,
+    with the drift against the supplier's previous delivery computed here.
+    """
     assert intake.profile is not None
     profile = visible_profile(session, intake.id, intake.profile.document)
+    profile = judged_profile(session, intake, profile)
+    flags = list(profile.get("flags") or [])
+    reviewed = review(session, intake, flags)
     candidates = baseline_candidates(session, intake)
-    chosen = next((c for c in candidates if c.id == baseline_id), None)
-    baseline = chosen or default_baseline(candidates, intake)
+    judgement = reviewed.judgement
+    if judgement is not None:
+        baseline_id = judgement.baseline_intake_id
+        baseline = session.get(Intake, baseline_id) if baseline_id is not None else None
+    else:
+        baseline = default_baseline(candidates, intake)
     drift = None
     if baseline is not None and baseline.profile is not None:
         base_doc = visible_profile(session, baseline.id, baseline.profile.document)
         drift = drift_view(base_doc, profile, settings)
+        if judgement is not None and judgement.drift:
+            drift["document"] = judgement.drift
     return {
         "profile": profile,
         "source": profile.get("source") or {},
@@ -102,8 +115,9 @@ def intake_context(
         "score": profile.get("score"),
         "score_rows": score_rows(profile.get("score")),
         "verdict": profile.get("verdict"),
+        "verdict_reasons": profile.get("verdict_reasons") or [],
         "flag_groups": flag_groups(profile),
-        "flag_count": len(profile.get("flags") or []),
+        "flag_count": len(flags),
         "cards": column_cards(profile),
         "missing_figure": figures.missing_figure(profile),
         "missing_together_figure": figures.missing_together_figure(
@@ -114,9 +128,11 @@ def intake_context(
         "twins": list(profile.get("twins") or []),
         "label_columns": label_columns(profile),
         "baseline": baseline,
+        "baseline_chosen": bool(judgement and judgement.baseline_chosen),
         "baseline_candidates": candidates,
         "drift": drift,
-        "has_personal_data": any(
-            str(f.get("code", "")).startswith("privacy.") for f in profile.get("flags") or []
-        ),
+        "review": reviewed,
+        "flag_key": flag_key,
+        "verdict_words": VERDICT_WORDS,
+        "has_personal_data": any(str(f.get("code", "")).startswith("privacy.") for f in flags),
     }

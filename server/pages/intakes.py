@@ -101,7 +101,6 @@ def intake_page_view(
     session: SessionDep,
     settings: SettingsDep,
     user: CurrentUser,
-    baseline: str | None = Query(None),
 ) -> HTMLResponse:
     """One intake, organised around the decision; its progress while it is profiled."""
     intake = session.get(Intake, intake_id)
@@ -109,5 +108,5 @@ def intake_page_view(
         raise ApiError(404, f"there is no intake {intake_id}", code="not_found")
     context = {"intake": intake, "user": user, "ready": intake.profile is not None}
     if intake.profile is not None:
-        context.update(intake_context(session, intake, settings, _int(baseline)))
+        context.update(intake_context(session, intake, settings))
     return templates.TemplateResponse(request, "intake.html", context)
