@@ -134,3 +134,19 @@ def test_jsonl_keys_in_order_of_first_appearance_and_broken_lines(tmp_path: Path
     assert table.column("late").to_pylist() == [None, None, "yes"]
     assert [error["line"] for error in source.parse_errors] == [4, 5]
     assert source.parse_error_count == 2
+
+
+def test_xlsx_that_inflates_like_a_bomb_is_refused(tmp_path: Path) -> None:
+    clean = _workbook(tmp_path / "clean.xlsx")
+    padded = tmp_path / "padded.xlsx"
+    with (
+        zipfile.ZipFile(clean) as source,
+        zipfile.ZipFile(padded, "w", zipfile.ZIP_DEFLATED, compresslevel=9) as target,
+    ):
+        for info in source.infolist():
+            data = source.read(info)
+            if info.filename == "xl/worksheets/sheet1.xml":
+                data = data.replace(b"<sheetData>", b"<sheetData>" + b" " * 40_000_000)
+            target.writestr(info.filename, data)
+    with pytest.raises(ProfileError, match="decompression bomb"):
+        open_table(padded)
