@@ -258,22 +258,38 @@ def mask_value(value: Any, kind: str | None = None) -> Any:
     text = value.strip()
     if kind is None:
         kind = next((k for k, hit in match_kinds([text]).items() if hit[0]), None)
+    masked = text
     if kind == "email" and "@" in text:
-        return _mask_email(text)
-    if kind == "card":
-        return _mask_digits(text, keep_last=4)
-    if kind == "phone":
-        return _mask_digits(text, keep_last=2)
-    if kind == "iban" and len(text.replace(" ", "")) > 6:
-        return _mask_iban(text)
-    if kind == "ip":
-        return _mask_ip(text)
-    return text[:1] + MASK * min(max(len(text) - 1, 3), 8)
+        masked = _mask_email(text)
+    elif kind == "card":
+        masked = _mask_digits(text, keep_last=4)
+    elif kind == "phone":
+        masked = _mask_digits(text, keep_last=2)
+    elif kind == "iban" and len(text.replace(" ", "")) > 6:
+        masked = _mask_iban(text)
+    elif kind == "ip" and ("." in text or ":" in text):
+        masked = _mask_ip(text)
+    if masked == text or kind not in KINDS:
+        # Not of the column's kind (a stray value) or of no known kind: hide all but one letter.
+        masked = text[:1] + MASK * min(max(len(text) - 1, 3), 8)
+    return masked
 
 
 # Keys whose strings are structure (field names, codes), not delivered values.
 _STRUCTURAL_KEYS = frozenset(
-    {"name", "kind", "method", "a", "b", "personal", "code", "severity", "message", "hint"}
+    {
+        "name",
+        "kind",
+        "method",
+        "a",
+        "b",
+        "personal",
+        "code",
+        "severity",
+        "message",
+        "hint",
+        "pattern",
+    }
 )
 # Keys under which mappings are keyed by delivered labels (e.g. a crosstab's counts).
 _LABEL_KEYED = frozenset({"counts", "residuals", "row_shares", "column_shares", "expected"})
@@ -302,7 +318,14 @@ def _mask_tree(node: Any, kind: str | None, *, label_keys: bool = False) -> Any:
 
 
 # Parts of a column document that can hold delivered values (labels, examples).
-_COLUMN_VALUE_KEYS = ("labels", "samples", "examples", "text", "suspected_sentinels")
+_COLUMN_VALUE_KEYS = (
+    "labels",
+    "samples",
+    "examples",
+    "text",
+    "suspected_sentinels",
+    "kind_evidence",
+)
 
 
 def mask_column(column: dict[str, Any]) -> dict[str, Any]:
@@ -327,6 +350,21 @@ def personal_columns(profile: dict[str, Any]) -> dict[str, str]:
     }
 
 
+def _mask_crosstab(table: dict[str, Any], kinds: dict[str, str]) -> dict[str, Any]:
+    """A crosstab with the labels of its personal side(s) masked, each by its own kind."""
+    kind_a, kind_b = kinds.get(table.get("a")), kinds.get(table.get("b"))
+    if kind_a is None and kind_b is None:
+        return table
+    counts = table.get("counts")
+    if isinstance(counts, dict) and ("a_labels" in counts or "b_labels" in counts):
+        counts = dict(counts)
+        for side, kind in (("a_labels", kind_a), ("b_labels", kind_b)):
+            if kind is not None and side in counts:
+                counts[side] = [mask_value(label, kind) for label in counts[side]]
+        return {**table, "counts": counts}
+    return _mask_tree(table, kind_a or kind_b)
+
+
 def mask_profile(profile: dict[str, Any]) -> dict[str, Any]:
     """A copy of a profile document in which personal columns' sample values are masked.
 
@@ -339,11 +377,7 @@ def mask_profile(profile: dict[str, Any]) -> dict[str, Any]:
         return profile
     masked = dict(profile)
     masked["columns"] = [mask_column(column) for column in profile.get("columns", [])]
-    crosstabs = []
-    for table in profile.get("crosstabs", []) or []:
-        involved = [kinds[name] for name in (table.get("a"), table.get("b")) if name in kinds]
-        crosstabs.append(_mask_tree(table, involved[0]) if involved else table)
-    masked["crosstabs"] = crosstabs
+    masked["crosstabs"] = [_mask_crosstab(t, kinds) for t in profile.get("crosstabs", []) or []]
     flags = []
     for flag in profile.get("flags", []) or []:
         involved = [kinds[name] for name in flag.get("columns", []) if name in kinds]

@@ -245,3 +245,29 @@ def test_personal_sample_stops_at_its_size_and_ignores_typed_columns() -> None:
     typed = PersonalSample()
     typed.update(pa.array([4111111111111111, 5555555555554444]))
     assert typed.values == [] and typed.finalize() is None
+
+
+def test_mask_profile_masks_each_side_of_a_crosstab_by_its_own_kind() -> None:
+    profile = {
+        "columns": [
+            {"name": "phone", "personal": {"kind": "phone"}},
+            {"name": "lead", "personal": {"kind": "email"}},
+            {"name": "shift"},
+        ],
+        "crosstabs": [
+            {
+                "a": "phone",
+                "b": "lead",
+                "counts": {"a_labels": ["+44 20 7946 0958"], "b_labels": ["lo@example.org"]},
+            },
+            {"a": "shift", "b": "lead", "counts": {"a_labels": ["early"], "b_labels": ["x@y.org"]}},
+        ],
+    }
+    first, second = mask_profile(profile)["crosstabs"]
+    assert first["counts"] == {"a_labels": ["+** ** **** **58"], "b_labels": ["l***@e***.org"]}
+    assert second["counts"] == {"a_labels": ["early"], "b_labels": ["x***@y***.org"]}
+
+
+def test_a_stray_value_of_another_kind_is_still_hidden() -> None:
+    # A phone column with one e-mail address in it: the address has no digits to hide.
+    assert mask_value("lo@example.org", "phone") == "l********"
