@@ -1,9 +1,10 @@
 """Judging an intake after profiling: its supplier's rules, the drift against its baseline.
 
-``judge_intake`` re-reads everything from the database, so it runs the same
-after a profiling job, after new rules are saved, or when a person picks
-another baseline. The baseline is the one a person chose for this intake, or
-else the supplier's newest earlier intake whose current decision accepts it.
+``judge`` re-reads everything from the database, so it runs the same inside
+the profiling job (``judge_quietly``, before the intake is marked ready),
+after new rules are saved, or when a person picks another baseline. The
+baseline is the one a person chose for this intake, or else the supplier's
+newest earlier intake whose current decision accepts it.
 The result replaces the intake's ``Judgement`` row; the profile document's
 ``flags``, ``score`` and ``verdict`` are updated to match, so every reader of
 the profile sees the same judgement.
@@ -14,10 +15,11 @@ from __future__ import annotations
 import logging
 from typing import Any
 
+from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.settings import Settings, get_settings
-from server.store import Intake, session_scope
+from server.store import Intake, Profile, session_scope
 from server.store.reviews import Judgement, last_accepted_intake, latest_rules
 from worker.profiling.judgement import assess, compare_profiles, parse_rules
 from worker.profiling.judgement.rules import RulesError, thresholds_for
@@ -40,9 +42,10 @@ def judge(
     default). Without it, an earlier choice stays. Returns None when the
     intake has no profile yet.
     """
-    if intake.profile is None:
+    profile = session.scalar(select(Profile).where(Profile.intake_id == intake.id))
+    if profile is None:
         return None
-    document = intake.profile.document
+    document = profile.document
     judgement = session.query(Judgement).filter_by(intake_id=intake.id).one_or_none()
     if baseline_id is _UNSET:
         chosen = judgement.baseline_intake_id if judgement and judgement.baseline_chosen else None
@@ -85,24 +88,35 @@ def judge(
     judgement.critical = severities.count("critical")
     judgement.warnings = severities.count("warning")
     judgement.infos = severities.count("info")
-    intake.profile.document = {
+    profile.document = {
         **document,
         "flags": result["flags"],
         "score": result["score"],
         "verdict": result["verdict"],
     }
-    intake.profile.overall_score = result["score"]["overall"]
+    profile.overall_score = result["score"]["overall"]
     session.flush()
     return judgement
 
 
-def judge_intake(intake_id: int, settings: Settings | None = None) -> None:
-    """Judge one intake after it was profiled; a failure is logged, the profile stays."""
-    settings = settings or get_settings()
+def judge_quietly(session: Session, intake: Intake, settings: Settings) -> None:
+    """Judge ``intake`` inside the job's transaction, before it is marked ready.
+
+    Runs in a savepoint: should judging fail, the failure is logged and the
+    profile is still stored (unjudged); it can be judged again later.
+    """
+    session.flush()
     try:
-        with session_scope(settings) as session:
-            intake = session.get(Intake, intake_id)
-            if intake is not None:
-                judge(session, intake, settings)
+        with session.begin_nested():
+            judge(session, intake, settings)
     except Exception:
-        log.exception("judging intake %s failed; its profile is kept unjudged", intake_id)
+        log.exception("judging intake %s failed; its profile is kept unjudged", intake.id)
+
+
+def judge_intake(intake_id: int, settings: Settings | None = None) -> None:
+    """Judge one stored intake again in a transaction of its own."""
+    settings = settings or get_settings()
+    with session_scope(settings) as session:
+        intake = session.get(Intake, intake_id)
+        if intake is not None:
+            judge(session, intake, settings)

@@ -33,7 +33,7 @@ from server.store import (
     session_scope,
 )
 from server.store.models import utcnow
-from worker.jobs.judging import judge_intake
+from worker.jobs.judging import judge_quietly
 from worker.jobs.progress import ProgressReporter
 from worker.jobs.summaries import column_rows, json_safe, overall_score
 from worker.profiling import ProfileError, profile_file
@@ -113,7 +113,6 @@ def profile_intake(
     if partial_copy.exists():
         os.replace(partial_copy, final_copy)
     _store_profile(settings, intake_id, json_safe(document))
-    judge_intake(intake_id, settings)
     return IntakeStatus.ready
 
 
@@ -164,6 +163,7 @@ def _store_profile(settings: Settings, intake_id: int, document: dict[str, Any])
             )
         )
         session.add_all(ColumnSummary(intake_id=intake_id, **row) for row in column_rows(document))
+        judge_quietly(session, intake, settings)
         intake.status = IntakeStatus.ready
         intake.stage = "done"
         intake.progress = 1.0
