@@ -63,3 +63,24 @@ def test_a_file_that_is_not_a_profile(tmp_path: Path, capsys: pytest.CaptureFixt
     (tmp_path / "list.json").write_text("[1, 2]", encoding="utf-8")
     assert main(["compare", str(tmp_path / "list.json"), str(tmp_path / "nowhere.json")]) == 2
     assert "not a profile document" in capsys.readouterr().err
+
+
+def test_compares_the_profiles_that_tidewaiter_profile_writes(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    rng = np.random.default_rng(3)
+    paths = []
+    for name, mean, rows in (("march", 18.0, 400), ("april", 21.0, 150)):
+        lines = ["crate_id,weight_kg,grade"]
+        lines += [f"C{i},{w:.2f},{'ABC'[i % 3]}" for i, w in enumerate(rng.normal(mean, 2, rows))]
+        csv = tmp_path / f"{name}.csv"
+        csv.write_text("\n".join(lines) + "\n", encoding="utf-8")
+        out = tmp_path / f"{name}.json"
+        assert main(["profile", str(csv), "--json", str(out), "--quiet"]) == 0
+        paths.append(out)
+    capsys.readouterr()
+    assert main(["compare", str(paths[0]), str(paths[1]), "--json", "-"]) == 0
+    drift = json.loads(capsys.readouterr().out)
+    assert drift["volume"]["ratio"] == pytest.approx(150 / 400)
+    codes = {f["code"] for f in drift["flags"]}
+    assert codes == {"stability.volume-change", "stability.distribution-shift"}
