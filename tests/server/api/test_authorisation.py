@@ -20,6 +20,7 @@ OPEN = {
     ("POST", "/sign-in"),
     ("POST", "/api/v1/auth/sign-in"),
     ("GET", "/static/vendor/plotly.min.js"),
+    ("GET", "/favicon.ico"),
     ("GET", "/openapi.json"),
     ("GET", "/docs"),
     ("GET", "/docs/oauth2-redirect"),
@@ -44,7 +45,7 @@ ADMIN_PATTERNS = [
     (r"^(PUT|POST|PATCH|DELETE)$", r".*/unmasking$"),
     (r"^DELETE$", r"^/api/v1/intakes/\{intake_id\}$"),
     (r"^(PUT|POST|PATCH|DELETE)$", r"^/api/v1/suppliers.*"),
-    (r"^(PUT|POST|PATCH|DELETE)$", r".*/rules.*"),
+    (r"^(PUT|POST|PATCH|DELETE)$", r"^/api/v1/suppliers/\{supplier_id\}/rules.*"),
     (r"^(PUT|POST|PATCH|DELETE)$", r".*/settings.*"),
     (r"^(PUT|POST|PATCH|DELETE)$", r"^/admin.*"),
 ]
