@@ -66,6 +66,18 @@ def profile_intake(
             return None
         if intake.status == IntakeStatus.ready and not force:
             return IntakeStatus.ready
+        if (
+            intake.status == IntakeStatus.profiling
+            and intake.attempts >= settings.sweeper_max_attempts
+        ):
+            # Every earlier attempt died mid-way (the message came back after its worker
+            # was lost): a file that kills its worker must not loop forever.
+            _mark_failed(
+                intake,
+                f"profiling did not finish after {intake.attempts} attempts; the worker "
+                "may have run out of memory or time on this file",
+            )
+            return IntakeStatus.failed
         if intake.file_key is None or not store.exists(intake.file_key):
             _mark_failed(intake, "the stored file of this intake is no longer there")
             return IntakeStatus.failed

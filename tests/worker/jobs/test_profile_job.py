@@ -158,3 +158,17 @@ def test_progress_reaches_the_intake_row(
         release.set()
         job.join()
     assert ("reading", 0.5) in seen
+
+
+def test_a_message_back_from_a_lost_worker_gives_up_after_the_attempt_limit(
+    app_settings: Settings,
+) -> None:
+    intake_id = _new_intake(app_settings)
+    with session_scope(app_settings) as session:
+        intake = session.get(Intake, intake_id)
+        # As left by attempts whose worker process died mid-way.
+        intake.status = IntakeStatus.profiling
+        intake.attempts = app_settings.sweeper_max_attempts
+    assert profile_intake(intake_id, app_settings) == IntakeStatus.failed
+    with session_scope(app_settings) as session:
+        assert "did not finish after" in session.get(Intake, intake_id).error

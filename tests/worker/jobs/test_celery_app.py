@@ -1,0 +1,27 @@
+"""The Celery app is configured for at-least-once delivery of idempotent jobs."""
+
+from __future__ import annotations
+
+from server.settings import Settings
+from worker.jobs.celery_app import TASK_NAME, make_celery
+from worker.jobs.profile_job import TRANSIENT_ERRORS
+
+
+def test_delivery_guarantees(app_settings: Settings) -> None:
+    app = make_celery(app_settings)
+    conf = app.conf
+    assert conf.task_acks_late is True
+    assert conf.task_reject_on_worker_lost is True
+    assert conf.worker_prefetch_multiplier == 1
+    assert conf.task_ignore_result is True  # the database holds the results
+    visibility = conf.broker_transport_options["visibility_timeout"]
+    assert visibility == app_settings.job_visibility_timeout_seconds
+    assert visibility > app_settings.sweeper_timeout_seconds
+
+
+def test_task_retries_transient_errors_with_backoff(app_settings: Settings) -> None:
+    task = make_celery(app_settings).tasks[TASK_NAME]
+    assert tuple(task.autoretry_for) == TRANSIENT_ERRORS
+    assert task.retry_backoff is True
+    assert task.retry_backoff_max == app_settings.job_retry_backoff_max_seconds
+    assert task.max_retries == app_settings.job_max_retries
