@@ -17,6 +17,7 @@ from server.api.deps import current_user
 from server.pages.account import router as account_router
 from server.pages.downloads import router as downloads_router
 from server.pages.intakes import router as intakes_router
+from server.pages.suppliers import router as suppliers_router
 
 WEB_DIR = Path(__file__).resolve().parents[2] / "web"
 PLOTLY_JS = Path(plotly.__file__).parent / "package_data" / "plotly.min.js"
@@ -49,4 +50,5 @@ def install_pages(app: FastAPI) -> None:
     app.include_router(account_router)
     app.include_router(intakes_router, dependencies=[Depends(current_user)])
     app.include_router(downloads_router, dependencies=[Depends(current_user)])
+    app.include_router(suppliers_router, dependencies=[Depends(current_user)])
     app.mount("/static", StaticFiles(directory=WEB_DIR / "static", check_dir=False), name="static")

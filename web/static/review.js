@@ -42,7 +42,7 @@
 
   var intakeId = (document.getElementById("decision-form") || document.getElementById("explorer") ||
                   document.getElementById("baseline-form") || { dataset: {} }).dataset.intake;
-  document.querySelectorAll(".thread").forEach(function (thread) {
+  document.querySelectorAll(".discussion").forEach(function (thread) {
     var form = thread.querySelector(".comment-form");
     if (!form) return;
     var message = thread.querySelector(".comment-message");

@@ -19,6 +19,7 @@ from server.pages.figures.drift import (
     drift_numeric_figure,
     drift_overview_figure,
 )
+from server.pages.figures.history import column_history_figure, timeline_figure
 from server.pages.figures.missing import missing_figure, missing_parts, missing_together_figure
 from server.pages.figures.relations import (
     correlation_figure,
@@ -30,6 +31,7 @@ from server.pages.figures.relations import (
 __all__ = [
     "Figure",
     "column_figure",
+    "column_history_figure",
     "correlation_figure",
     "correlation_methods",
     "crosstab_figure",
@@ -45,5 +47,6 @@ __all__ = [
     "missing_together_figure",
     "numeric_figure",
     "safe_text",
+    "timeline_figure",
     "whiskers",
 ]
