@@ -15,8 +15,7 @@ import numpy as np
 import pytest
 
 from worker.profiling import profile_file
-from worker.profiling.judgement import FlagThresholds, assess, compare_profiles
-from worker.profiling.personal import detect_personal
+from worker.profiling.judgement import FlagThresholds, compare_profiles
 
 N = 400
 Rows = list[dict[str, object]]
@@ -159,8 +158,8 @@ PLANTED: dict[str, Callable[[Rows], Rows]] = {
     "balance.skewed-crosstab": _skewed,
     "information.single-value": _single,
     "information.mostly-unique": _mostly_unique,
+    "privacy.personal-data": _personal,
 }
-# privacy.personal-data: see test_personal_data_from_the_detector below.
 
 
 @pytest.fixture(scope="module")
@@ -204,22 +203,4 @@ def test_stability_flags_between_real_deliveries(tmp_path: Path) -> None:
         "stability.schema-change",
         "stability.distribution-shift",
         "stability.volume-change",
-    }
-
-
-def test_personal_data_from_the_detector(tmp_path: Path) -> None:
-    # The engine does not run the personal-data detector yet, so the test runs it on the
-    # planted column's values and stores its finding where the profile keeps it.
-    rows = _personal(clean_rows())
-    profile = profile_file(write(tmp_path / "planted.csv", rows))
-    contact = next(c for c in profile["columns"] if c["name"] == "contact")
-    contact["personal"] = detect_personal([row["contact"] for row in rows])
-    flags = assess(profile, thresholds=FlagThresholds())["flags"]
-    (flag,) = [f for f in flags if f["code"] == "privacy.personal-data"]
-    assert flag["columns"] == ["contact"] and flag["evidence"]["kind"] == "email"
-    clean = profile_file(write(tmp_path / "clean.csv", clean_rows()))
-    for column in clean["columns"]:
-        column["personal"] = detect_personal([str(row[column["name"]]) for row in clean_rows()])
-    assert "privacy.personal-data" not in {
-        f["code"] for f in assess(clean, thresholds=FlagThresholds())["flags"]
     }
