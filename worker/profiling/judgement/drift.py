@@ -19,11 +19,12 @@ How the distances are read off stored summaries:
   per bin comes from its own percentiles (linear between stored points). An
   empty bin's share is raised to ``thresholds.psi_floor`` (0.0001) so the
   logarithm stays finite (common practice; the shares are not renormalised).
-- KS: exact when both profiles carry a column's values (``numeric.values``,
-  kept by the engine for small columns): the largest gap between the two
-  empirical distribution functions, with scipy's p-value (exact for small samples). Otherwise the
-  largest gap between the two cumulative functions read off the percentiles,
-  off by at most about 0.01 per side, with an approximate p-value.
+- KS: exact when both profiles carry a column's sorted values
+  (``numeric.values``; the engine does not store them yet, a profile may):
+  the largest gap between the two empirical distribution functions, with
+  scipy's p-value (exact for small samples). Otherwise the largest gap
+  between the two cumulative functions read off the percentiles, off by at
+  most about 0.01 per side for large samples, with an approximate p-value.
 - Labels: each side's counts of its listed labels plus one bucket for the
   labels it did not list (``other_count``). A label is new (vanished) when it
   is listed in the target (baseline) and absent from the other side's list;
