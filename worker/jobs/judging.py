@@ -20,13 +20,33 @@ from sqlalchemy.orm import Session
 
 from server.settings import Settings, get_settings
 from server.store import Intake, Profile, session_scope
-from server.store.reviews import Judgement, last_accepted_intake, latest_rules
-from worker.profiling.judgement import assess, compare_profiles, parse_rules
+from server.store.reviews import Judgement, SupplierRules, last_accepted_intake, latest_rules
+from worker.profiling.judgement import FlagThresholds, assess, compare_profiles, parse_rules
+from worker.profiling.judgement import SupplierRules as ParsedRules
 from worker.profiling.judgement.rules import RulesError, thresholds_for
 
 log = logging.getLogger(__name__)
 
 _UNSET: Any = object()
+
+
+def supplier_rules(
+    session: Session, supplier_id: int
+) -> tuple[SupplierRules | None, ParsedRules | None]:
+    """The supplier's current rules version and its parsed document (None, None without)."""
+    row = latest_rules(session, supplier_id)
+    if row is None:
+        return None, None
+    try:
+        return row, parse_rules(row.document)
+    except RulesError:  # saved rules were valid; a later schema may no longer accept them
+        log.warning("rules version %s of supplier %s no longer validate", row.version, supplier_id)
+        return None, None
+
+
+def supplier_thresholds(session: Session, supplier_id: int, settings: Settings) -> FlagThresholds:
+    """The flag thresholds for this supplier: the settings' with its rules' overrides."""
+    return thresholds_for(supplier_rules(session, supplier_id)[1], settings.profiling.thresholds)
 
 
 def judge(
@@ -55,15 +75,7 @@ def judge(
     if baseline is None or baseline.profile is None:
         chosen = None
         baseline = last_accepted_intake(session, intake.supplier_id, intake)
-    rules_row = latest_rules(session, intake.supplier_id)
-    rules = None
-    if rules_row is not None:
-        try:
-            rules = parse_rules(rules_row.document)
-        except RulesError:  # saved rules are validated; an older schema may no longer fit
-            log.warning("rules version %s of supplier %s no longer validate", rules_row.version,
-                        intake.supplier_id)  # fmt: skip
-            rules_row, rules = None, None
+    rules_row, rules = supplier_rules(session, intake.supplier_id)
     thresholds = thresholds_for(rules, settings.profiling.thresholds)
     drift = None
     if baseline is not None:

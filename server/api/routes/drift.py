@@ -1,7 +1,8 @@
 """/api/v1/intakes/{id}/drift: what changed against the baseline, or against a chosen intake.
 
 Computed from the two stored profiles only, so it works after the files were
-purged. Label values of personal-data columns are masked like the profile's.
+purged, with the target supplier's thresholds (its rules may override them).
+Label values of personal-data columns are masked like the profile's.
 """
 
 from __future__ import annotations
@@ -17,13 +18,16 @@ from server.api.errors import ApiError
 from server.security.masking import visible_profile
 from server.store import Intake
 from server.store.reviews import Judgement, last_accepted_intake
-from worker.profiling.judgement import compare_profiles
+from worker.jobs.judging import supplier_thresholds
+from worker.profiling.judgement import FlagThresholds, compare_profiles
 from worker.profiling.personal import mask_value, personal_columns
 
 router = APIRouter(prefix="/intakes/{intake_id}", tags=["drift"])
 
 
-def drift_between(session: Session, baseline: Intake, target: Intake, thresholds) -> dict:
+def drift_between(
+    session: Session, baseline: Intake, target: Intake, thresholds: FlagThresholds
+) -> dict[str, Any]:
     """The drift document of ``target`` against ``baseline``, masked where the profiles are."""
     if baseline.profile is None or target.profile is None:
         missing = baseline if baseline.profile is None else target
@@ -96,4 +100,5 @@ def get_drift(
                 "intake; choose one with ?baseline=<intake id>",
                 code="no_baseline",
             )
-    return drift_between(session, chosen, intake, settings.profiling.thresholds)
+    thresholds = supplier_thresholds(session, intake.supplier_id, settings)
+    return drift_between(session, chosen, intake, thresholds)

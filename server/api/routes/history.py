@@ -27,6 +27,7 @@ from server.api.errors import ApiError
 from server.api.routes.drift import drift_between
 from server.store import ColumnSummary, Intake, IntakeStatus, Supplier
 from server.store.reviews import ACCEPTING, Judgement, latest_decisions
+from worker.jobs.judging import supplier_thresholds
 
 router = APIRouter(prefix="/history", tags=["history"])
 
@@ -274,5 +275,6 @@ def side_by_side(
     for ref, intake in ((a, first), (b, second)):
         if intake is None:
             raise ApiError(404, f"there is no intake {ref}", code="not_found")
-    drift = drift_between(session, first, second, settings.profiling.thresholds)
+    thresholds = supplier_thresholds(session, second.supplier_id, settings)
+    drift = drift_between(session, first, second, thresholds)
     return SideBySide(a=_side(session, first), b=_side(session, second), drift=drift)
