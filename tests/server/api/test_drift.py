@@ -39,3 +39,21 @@ def test_drift_against_the_default_and_a_chosen_baseline(api) -> None:
     assert chosen.json()["baseline"]["intake_id"] == second["id"]
     missing = api.get(f"/api/v1/intakes/{third['id']}/drift", params={"baseline": 999999})
     assert missing.status_code == 404
+
+
+def test_the_suppliers_rules_may_change_the_thresholds(api) -> None:
+    supplier = new_supplier(api)
+    first = deliver(api, supplier["id"], crates_csv(5), "w5.csv")
+    second = deliver(api, supplier["id"], crates_csv(6, rows=120), "w6.csv")
+    url = f"/api/v1/intakes/{second['id']}/drift"
+    params = {"baseline": first["id"]}
+    assert "stability.volume-change" in {
+        f["code"] for f in api.get(url, params=params).json()["flags"]
+    }
+    rules = {"thresholds": {"volume_change": 0.9}}  # this supplier's volume varies a lot
+    assert (
+        api.put(f"/api/v1/suppliers/{supplier['id']}/rules", json={"document": rules}).status_code
+        == 201
+    )
+    codes = {f["code"] for f in api.get(url, params=params).json()["flags"]}
+    assert "stability.volume-change" not in codes
