@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import logging
 import mimetypes
-from typing import Any, Literal
+from typing import Literal
 
 from fastapi import APIRouter, Query, Request, Response, status
-from fastapi.responses import FileResponse
+from fastapi.responses import FileResponse, JSONResponse
 from sqlalchemy import func, select
 from sqlalchemy.orm import selectinload
 
@@ -169,8 +169,8 @@ def get_intake(intake: IntakeDep, user: CurrentUser) -> IntakeOut:
     return IntakeOut.of(intake)
 
 
-@router.get("/{intake_id}/profile")
-def get_profile(intake: IntakeDep, session: SessionDep, user: CurrentUser) -> dict[str, Any]:
+@router.get("/{intake_id}/profile", response_class=JSONResponse)
+def get_profile(intake: IntakeDep, session: SessionDep, user: CurrentUser) -> JSONResponse:
     """The intake's profile document (format_version 1), personal values masked unless unmasked."""
     if intake.profile is None:
         if intake.status == IntakeStatus.failed:
@@ -183,7 +183,8 @@ def get_profile(intake: IntakeDep, session: SessionDep, user: CurrentUser) -> di
             f"({intake.stage}, {intake.progress:.0%} read)",
             code="not_ready",
         )
-    return visible_profile(session, intake.id, intake.profile.document)
+    # Already plain JSON: sent as it is, without a second pass of validation and encoding.
+    return JSONResponse(visible_profile(session, intake.id, intake.profile.document))
 
 
 @router.post("/{intake_id}/reprofile", response_model=IntakeOut, status_code=202)
