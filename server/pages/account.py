@@ -66,7 +66,8 @@ def sign_in_submit(
             request,
             "account/sign_in.html",
             {"next": local_target(next), "message": outcome.message, "name": name, "user": None},
-            status_code=429 if outcome.retry_after is not None else 401,
+            # The form again with the reason; a refused password is no error of the page.
+            status_code=429 if outcome.retry_after is not None else 200,
         )
     secret = accounts.open_session(
         session,

@@ -38,14 +38,20 @@
   });
   document.addEventListener("submit", function (event) { arm(event.target); }, true);
 
+  // A page script that sets the header itself keeps its own (set twice, the values would join).
   var open = XMLHttpRequest.prototype.open;
   var send = XMLHttpRequest.prototype.send;
+  var setHeader = XMLHttpRequest.prototype.setRequestHeader;
   XMLHttpRequest.prototype.open = function (method, url) {
     this._tidewaiterArm = !SAFE[String(method).toUpperCase()] && sameOrigin(url);
     return open.apply(this, arguments);
   };
+  XMLHttpRequest.prototype.setRequestHeader = function (name) {
+    if (String(name).toLowerCase() === "x-csrf-token") this._tidewaiterArm = false;
+    return setHeader.apply(this, arguments);
+  };
   XMLHttpRequest.prototype.send = function () {
-    if (this._tidewaiterArm) this.setRequestHeader("X-CSRF-Token", token);
+    if (this._tidewaiterArm) setHeader.call(this, "X-CSRF-Token", token);
     return send.apply(this, arguments);
   };
 
@@ -57,7 +63,7 @@
       var url = typeof input === "string" ? input : (input && input.url) || "";
       if (!SAFE[method] && sameOrigin(url)) {
         var headers = new Headers(init.headers || (input && input.headers) || {});
-        headers.set("X-CSRF-Token", token);
+        if (!headers.has("X-CSRF-Token")) headers.set("X-CSRF-Token", token);
         init.headers = headers;
       }
       return originalFetch.call(this, input, init);
