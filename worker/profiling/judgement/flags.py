@@ -14,7 +14,14 @@ from typing import Any
 
 from worker.profiling.judgement.tables import contingency_table
 from worker.profiling.judgement.thresholds import FlagThresholds
-from worker.profiling.judgement.wording import make_flag, number, percent, quoted
+from worker.profiling.judgement.wording import (
+    linear,
+    make_flag,
+    number,
+    percent,
+    plural,
+    quoted,
+)
 
 Flag = dict[str, Any]
 ProfileFlagger = Callable[[dict[str, Any], FlagThresholds], list[Flag]]
@@ -226,21 +233,25 @@ def outliers(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
     for column in _columns(profile):
         numeric = column.get("numeric") or {}
         found = numeric.get("outliers") or {}
-        far = int(found.get("tukey_far") or 0)
-        modified = int(found.get("modified_z") or 0)
+        far_stand_ins, modified_stand_ins = stand_ins_beyond(column, t)
+        far = int(found.get("tukey_far") or 0) - far_stand_ins
+        modified = int(found.get("modified_z") or 0) - modified_stand_ins
         inner = int(found.get("tukey_low") or 0) + int(found.get("tukey_high") or 0)
         count = int(column.get("count") or 0)
-        if count == 0 or (far == 0 and modified == 0):
+        if count == 0 or (far <= 0 and modified <= 0):
             continue
+        far, modified = max(far, 0), max(modified, 0)
         name = column["name"]
         severity = "warning" if far / count >= t.outlier_share_warning else "info"
         message = (
-            f"'{name}' has {number(far)} values beyond Tukey's outer fences "
+            f"'{name}' has {plural(far, 'value')} beyond Tukey's outer fences "
             f"({number(t.tukey_far_k)} × IQR from the quartiles) and {number(modified)} with a "
             f"modified z-score above {number(t.modified_z)}; values run from "
             f"{number(numeric.get('min'))} to {number(numeric.get('max'))} around a median of "
             f"{number(numeric.get('median'))}."
         )
+        if far_stand_ins or modified_stand_ins:
+            message += " Stand-ins for 'unknown' are not counted here."
         flags.append(
             make_flag(
                 "validity.outliers",
@@ -253,6 +264,10 @@ def outliers(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
                     "tukey_inner": inner,
                     "tukey_far": far,
                     "modified_z": modified,
+                    "stand_ins_left_out": {
+                        "tukey_far": far_stand_ins,
+                        "modified_z": modified_stand_ins,
+                    },
                     "count": count,
                     "share_far": far / count,
                     "q1": numeric.get("q1"),
@@ -263,6 +278,30 @@ def outliers(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
             )
         )
     return flags
+
+
+def stand_ins_beyond(column: dict[str, Any], t: FlagThresholds) -> tuple[int, int]:
+    """Rows of suspected stand-ins (such as -999) that the outlier counts include.
+
+    A stand-in beyond Tukey's outer fences, or with a modified z-score above
+    the threshold, is counted among the outliers by the engine; it is already
+    reported as a disguised missing value, so it is taken out of the outliers.
+    Returns (rows beyond the outer fences, rows above the modified z threshold).
+    """
+    numeric = column.get("numeric") or {}
+    q1, q3, median, mad = (numeric.get(k) for k in ("q1", "q3", "median", "mad"))
+    far = modified = 0
+    for stand_in in column.get("suspected_sentinels") or []:
+        value, n = stand_in.get("value"), int(stand_in.get("count") or 0)
+        if not isinstance(value, int | float) or isinstance(value, bool):
+            continue
+        if q1 is not None and q3 is not None:
+            iqr = q3 - q1
+            if value < q1 - t.tukey_far_k * iqr or value > q3 + t.tukey_far_k * iqr:
+                far += n
+        if median is not None and mad and abs(0.6745 * (value - median) / mad) > t.modified_z:
+            modified += n
+    return far, modified
 
 
 def rule_flags(rule_results: list[dict[str, Any]]) -> list[Flag]:
@@ -299,7 +338,8 @@ def repeated_rows(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
             "uniqueness.repeated-rows",
             severity,
             [],
-            f"{number(repeated)} rows ({percent(share)}) repeat an earlier row exactly.",
+            f"{plural(repeated, 'row')} ({percent(share)}) "
+            f"{'repeats' if repeated == 1 else 'repeat'} an earlier row exactly.",
             {
                 "duplicate_rows": repeated,
                 "rows": rows,
@@ -388,7 +428,7 @@ def twin_columns(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
             continue
         a, b = twin["a"], twin["b"]
         hint = twin.get("hint")
-        relation = f"'{b}' ≈ {number(twin.get('slope'))} × '{a}' + {number(twin.get('intercept'))}"
+        relation = f"'{b}' ≈ {linear(twin.get('slope'), a, twin.get('intercept'))}"
         flags.append(
             make_flag(
                 "redundancy.twin-columns",
@@ -530,7 +570,8 @@ def rare_labels(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
                 "balance.rare-labels",
                 "info",
                 [name],
-                f"{number(len(rare))} labels of '{name}' each hold less than "
+                f"{plural(len(rare), 'label')} of '{name}' "
+                f"{'holds' if len(rare) == 1 else 'each hold'} less than "
                 f"{percent(t.rare_label_share)} of its rows: {shown}.",
                 {
                     "labels": [{"value": i["value"], "count": i["count"]} for i in rare],

@@ -6,7 +6,8 @@ nothing was found and any finding costs at least one point:
 - completeness: bad = missing cells + cells holding a suspected stand-in for
   'unknown' (such as -999); checked = rows × columns.
 - validity: bad = values that do not fit their column's kind + values beyond
-  Tukey's outer fences + values a supplier rule rejects; checked = filled cells.
+  Tukey's outer fences (stand-ins left out: completeness counts them) + values
+  a supplier rule rejects; checked = filled cells.
 - uniqueness: bad = rows repeating an earlier row + repeated keys of the worst
   identifier column (at most all rows); checked = rows.
 - consistency: bad = cells of label columns written in a minority spelling of
@@ -34,6 +35,7 @@ from worker.profiling.judgement.flags import (
     is_mostly_unique,
     off_kind_count,
     rare_label_items,
+    stand_ins_beyond,
     variant_cells,
 )
 from worker.profiling.judgement.thresholds import FlagThresholds
@@ -83,12 +85,17 @@ def completeness(profile: dict[str, Any]) -> tuple[int, str]:
     )
 
 
-def validity(profile: dict[str, Any], rule_results: list[dict[str, Any]] | None) -> tuple[int, str]:
+def validity(
+    profile: dict[str, Any],
+    rule_results: list[dict[str, Any]] | None,
+    thresholds: FlagThresholds,
+) -> tuple[int, str]:
     """Share of filled cells that fit their column's kind, fences and rules."""
     filled = sum(int(c.get("count") or 0) for c in profile.get("columns") or [])
     per_column: dict[str, float] = {}
     for column in profile.get("columns") or []:
         far = int(((column.get("numeric") or {}).get("outliers") or {}).get("tukey_far") or 0)
+        far = max(0, far - stand_ins_beyond(column, thresholds)[0])  # counted as missing
         bad = off_kind_count(column) + far
         if bad:
             per_column[column["name"]] = bad
@@ -243,7 +250,7 @@ def scorecard(
     """
     computed: dict[str, tuple[int, str]] = {
         "completeness": completeness(profile),
-        "validity": validity(profile, rule_results),
+        "validity": validity(profile, rule_results, thresholds),
         "uniqueness": uniqueness(profile),
         "consistency": consistency(profile),
         "balance": balance(profile, thresholds),

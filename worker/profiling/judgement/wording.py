@@ -26,6 +26,19 @@ def number(value: Any) -> str:
     return f"{value:.4g}"
 
 
+def plural(count: int, word: str) -> str:
+    """'1 row', '2 rows': a count with its noun."""
+    return f"{number(count)} {word}{'' if count == 1 else 's'}"
+
+
+def linear(slope: Any, name: str, intercept: Any) -> str:
+    """ "2.205 × 'kg'", with "+ 3" or "- 3" when the intercept is not negligible (>= 0.001)."""
+    text = f"{number(slope)} × '{name}'"
+    if isinstance(intercept, int | float) and abs(intercept) >= 1e-3:
+        text += f" {'+' if intercept > 0 else '-'} {number(abs(intercept))}"
+    return text
+
+
 def quoted(names: list[str] | tuple[str, ...]) -> str:
     """Column names in quotes, joined with commas and a final 'and'."""
     parts = [f"'{name}'" for name in names]

@@ -122,9 +122,13 @@ def test_disguised_missing_from_a_stand_in_number() -> None:
     weights = np.round(rng.normal(18, 2, N), 2).tolist()
     weights[:17] = [-999.0] * 17  # 4.25 % of the rows hold -999
     column = numeric_column("weight_kg", weights, sentinels=[-999.0])
-    flag = only(raise_flags(_replace(clean_profile(), column), T), "completeness.disguised-missing")
+    flags = raise_flags(_replace(clean_profile(), column), T)
+    flag = only(flags, "completeness.disguised-missing")
     assert flag["severity"] == "warning"
     assert flag["evidence"]["count"] == 17
+    # -999 lies far beyond the fences, but it is a stand-in, not an outlier.
+    assert column["numeric"]["outliers"]["tukey_far"] == 17
+    assert "validity.outliers" not in codes(flags)
     assert flag["message"].startswith("4.2 % of 'weight_kg' is -999, which looks like a code")
 
 
@@ -211,6 +215,7 @@ def test_twin_columns() -> None:
     flag = only(flags, "redundancy.twin-columns")
     assert flag["columns"] == ["weight_kg", "weight_lb"]
     assert "pounds" in flag["message"]
+    assert flag["message"].startswith("'weight_lb' ≈ 2.205 × 'weight_kg' (r = 1.00000)")
     assert "redundancy.strong-pair" not in codes(flags)  # the twin says it already
 
 
@@ -340,3 +345,15 @@ def test_flags_are_ordered_by_severity() -> None:
     severities = [f["severity"] for f in raise_flags(profile, T)]
     assert severities == sorted(severities, key=["critical", "warning", "info"].index)
     assert severities[0] == "critical"
+
+
+def test_outliers_beside_stand_ins_are_still_raised() -> None:
+    rng = _rng()
+    weights = np.round(rng.normal(18, 2, N), 2).tolist()
+    weights[:17] = [-999.0] * 17
+    weights[17:23] = [180.0, 175.0, 190.0, 185.0, 200.0, 210.0]  # typed in grams
+    column = numeric_column("weight_kg", weights, sentinels=[-999.0])
+    flag = only(raise_flags(_replace(clean_profile(), column), T), "validity.outliers")
+    assert flag["evidence"]["tukey_far"] == 6
+    assert flag["evidence"]["stand_ins_left_out"]["tukey_far"] == 17
+    assert flag["message"].endswith("Stand-ins for 'unknown' are not counted here.")
