@@ -418,6 +418,14 @@ def variant_cells(column: dict[str, Any]) -> int:
 # redundancy
 
 
+def _median_of(profile: dict[str, Any], name: str) -> float:
+    for column in _columns(profile):
+        if column["name"] == name:
+            median = (column.get("numeric") or {}).get("median")
+            return float(median) if median is not None else 1.0
+    return 1.0
+
+
 @_registers("redundancy.twin-columns")
 def twin_columns(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
     """Two columns that are one measure: b = slope·a + intercept almost exactly."""
@@ -428,7 +436,8 @@ def twin_columns(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
             continue
         a, b = twin["a"], twin["b"]
         hint = twin.get("hint")
-        relation = f"'{b}' ≈ {linear(twin.get('slope'), a, twin.get('intercept'))}"
+        typical = _median_of(profile, a) * float(twin.get("slope") or 0)
+        relation = f"'{b}' ≈ {linear(twin.get('slope'), a, twin.get('intercept'), typical)}"
         flags.append(
             make_flag(
                 "redundancy.twin-columns",

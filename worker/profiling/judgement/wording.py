@@ -31,10 +31,14 @@ def plural(count: int, word: str) -> str:
     return f"{number(count)} {word}{'' if count == 1 else 's'}"
 
 
-def linear(slope: Any, name: str, intercept: Any) -> str:
-    """ "2.205 × 'kg'", with "+ 3" or "- 3" when the intercept is not negligible (>= 0.001)."""
+def linear(slope: Any, name: str, intercept: Any, scale: float = 1.0) -> str:
+    """A linear relation in words, e.g. 2.205 × 'weight_kg' + 3.
+
+    The intercept is left out when it is below 0.1 % of ``scale`` (the typical
+    size of the result), where it is rounding, not a real offset.
+    """
     text = f"{number(slope)} × '{name}'"
-    if isinstance(intercept, int | float) and abs(intercept) >= 1e-3:
+    if isinstance(intercept, int | float) and abs(intercept) >= 1e-3 * max(abs(scale), 1.0):
         text += f" {'+' if intercept > 0 else '-'} {number(abs(intercept))}"
     return text
 
