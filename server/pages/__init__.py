@@ -15,6 +15,7 @@ from fastapi.staticfiles import StaticFiles
 
 from server.api.deps import current_user
 from server.pages.account import router as account_router
+from server.pages.admin import router as admin_router
 from server.pages.downloads import router as downloads_router
 from server.pages.intakes import router as intakes_router
 from server.pages.suppliers import router as suppliers_router
@@ -49,6 +50,7 @@ def install_pages(app: FastAPI) -> None:
     # account pages (sign-in itself, sign-out, own tokens) check their callers themselves.
     app.include_router(account_router)
     app.include_router(intakes_router, dependencies=[Depends(current_user)])
+    app.include_router(admin_router, dependencies=[Depends(current_user)])
     app.include_router(downloads_router, dependencies=[Depends(current_user)])
     app.include_router(suppliers_router, dependencies=[Depends(current_user)])
     app.mount("/static", StaticFiles(directory=WEB_DIR / "static", check_dir=False), name="static")

@@ -47,7 +47,8 @@ ADMIN_PATTERNS = [
     (r"^(PUT|POST|PATCH|DELETE)$", r"^/api/v1/suppliers.*"),
     (r"^(PUT|POST|PATCH|DELETE)$", r"^/api/v1/suppliers/\{supplier_id\}/rules.*"),
     (r"^(PUT|POST|PATCH|DELETE)$", r".*/settings.*"),
-    (r"^(PUT|POST|PATCH|DELETE)$", r"^/admin.*"),
+    (r".*", r"^/admin/.*"),
+    (r"^POST$", r"^/intakes/\{intake_id\}/(unmasking|delete)$"),
 ]
 SAFE = {"GET", "HEAD", "OPTIONS"}
 
