@@ -24,14 +24,16 @@ ACTIONS: tuple[tuple[str, str], ...] = (
     ("/sign-in", ""),
     ("/sign-out", ""),
     ("unmask", ""),
+    ("/validate", ""),  # checks a document, changes nothing
     ("decision", "decision"),
     ("comment", "comment"),
+    ("thread", "comment"),
     ("rule", "rule-change"),
     ("token", "token-change"),
     ("user", "user-change"),
     ("supplier", "supplier-change"),
 )
-DOWNLOAD_WORDS = ("/file", "download", "export", "report", "/rows", "/sample")
+DOWNLOAD_WORDS = ("/file", "download", "export", "report", "/rows", "/sample", ".csv")
 """GET routes whose path holds one of these words hand out delivered content."""
 
 
