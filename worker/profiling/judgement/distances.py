@@ -144,3 +144,43 @@ def js_distance(p: Sequence[float], q: Sequence[float]) -> float:
         return float(np.sum(a[mask] * np.log2(a[mask] / m[mask])))
 
     return float(np.sqrt(max(0.0, (kl(p) + kl(q)) / 2)))
+
+
+SMALL_SAMPLE = 51
+"""Largest sample whose sorted values can be read back from its 101 percentiles."""
+
+
+def values_from_percentiles(percentiles: Sequence[float], n: int) -> np.ndarray | None:
+    """The sorted sample behind 101 type-7 percentiles, when it has at most 51 values.
+
+    Type-7 quantiles are linear in p between p = i/(n-1) and (i+1)/(n-1),
+    ending at the order statistics x[i] and x[i+1]. With n <= 51 each such
+    piece holds at least two of the percentiles p = k/100, which fix the line
+    and so its ends. The result is checked by recomputing the percentiles
+    with numpy; None when they do not match (a sketch, or another n).
+
+    References: Hyndman & Fan (1996), Sample quantiles in statistical
+    packages, The American Statistician 50:361-365 (definition 7).
+    """
+    q = np.asarray(percentiles, dtype=float)
+    if not 2 <= n <= SMALL_SAMPLE or len(q) != 101 or not np.all(np.isfinite(q)):
+        return None
+    values = np.empty(n)
+    values[0], values[-1] = q[0], q[-1]
+    for i in range(1, n - 1):
+        # the percentile grid inside the piece just left of the knot p = i/(n-1)
+        low = int(np.ceil(100 * (i - 1) / (n - 1) - 1e-9))
+        high = int(np.floor(100 * i / (n - 1) + 1e-9))
+        if 100 * i % (n - 1) == 0:
+            values[i] = q[100 * i // (n - 1)]
+            continue
+        k1, k2 = high - 1, high
+        if k1 < low:
+            return None
+        h1, h2 = k1 * (n - 1) / 100, k2 * (n - 1) / 100
+        values[i] = q[k2] + (q[k2] - q[k1]) * (i - h2) / (h2 - h1)
+    scale = max(1.0, float(np.abs(q).max()))
+    recomputed = np.percentile(values, np.arange(101))
+    if not np.allclose(recomputed, q, rtol=0, atol=1e-9 * scale):
+        return None
+    return values

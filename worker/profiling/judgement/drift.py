@@ -19,8 +19,9 @@ How the distances are read off stored summaries:
   per bin comes from its own percentiles (linear between stored points). An
   empty bin's share is raised to ``thresholds.psi_floor`` (0.0001) so the
   logarithm stays finite (common practice; the shares are not renormalised).
-- KS: exact when both profiles carry a column's sorted values
-  (``numeric.values``; the engine does not store them yet, a profile may):
+- KS: exact when both sides are small (at most 51 values, whose sorted
+  values the 101 exact percentiles determine, see
+  ``values_from_percentiles``) or when a profile stores ``numeric.values``:
   the largest gap between the two empirical distribution functions, with
   scipy's p-value (exact for small samples). Otherwise the largest gap
   between the two cumulative functions read off the percentiles, off by at
@@ -46,6 +47,7 @@ from worker.profiling.judgement.distances import (
     ks_from_percentiles,
     ks_p_value,
     psi,
+    values_from_percentiles,
 )
 from worker.profiling.judgement.flags import stability_flags
 from worker.profiling.judgement.tables import chi_square
@@ -74,6 +76,15 @@ def label_counts(column: dict[str, Any]) -> dict[str, int]:
     return counts
 
 
+def _exact_values(numeric: dict[str, Any], count: int) -> Any:
+    """A column's sorted values: stored, or read back from the percentiles of a small sample."""
+    if numeric.get("values"):
+        return numeric["values"]
+    if numeric.get("exact") is False:
+        return None
+    return values_from_percentiles(numeric["percentiles"], count)
+
+
 def _numeric_drift(
     base: dict[str, Any], target: dict[str, Any], thresholds: FlagThresholds
 ) -> dict[str, Any]:
@@ -85,11 +96,12 @@ def _numeric_drift(
         )
         result.update(psi=value, psi_bins={"edges": edges, "baseline": expected, "target": actual})
         n_b, n_t = int(base.get("count") or 0), int(target.get("count") or 0)
-        if b.get("values") and t.get("values"):
-            result["ks"] = ks_exact(b["values"], t["values"])
+        values_b, values_t = _exact_values(b, n_b), _exact_values(t, n_t)
+        if values_b is not None and values_t is not None:
+            result["ks"] = ks_exact(values_b, values_t)
             with warnings.catch_warnings():  # scipy falls back to asymptotic on ties, saying so
                 warnings.simplefilter("ignore", RuntimeWarning)
-                result["ks_p_value"] = float(stats.ks_2samp(b["values"], t["values"]).pvalue)
+                result["ks_p_value"] = float(stats.ks_2samp(values_b, values_t).pvalue)
             result["ks_exact"] = True
         else:
             result["ks"] = ks_from_percentiles(b["percentiles"], t["percentiles"])

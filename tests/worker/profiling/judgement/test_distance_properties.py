@@ -14,6 +14,7 @@ from worker.profiling.judgement.distances import (
     ks_exact,
     ks_from_percentiles,
     psi,
+    values_from_percentiles,
 )
 
 samples = st.lists(
@@ -71,3 +72,12 @@ def test_psi_of_shares_is_symmetric_and_non_negative(p: list[int]) -> None:
     a = e[::-1]
     assert psi(e, a) >= 0.0
     assert abs(psi(e, a) - psi(a, e)) < 1e-9
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.floats(min_value=-1e4, max_value=1e4, allow_nan=False), min_size=2, max_size=51))
+def test_small_samples_round_trip_through_their_percentiles(values: list[float]) -> None:
+    ordered = np.sort(np.asarray(values))
+    back = values_from_percentiles(_percentiles(values), len(values))
+    assert back is not None
+    assert np.allclose(back, ordered, rtol=0, atol=1e-6)

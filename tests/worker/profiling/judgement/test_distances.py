@@ -18,6 +18,7 @@ from worker.profiling.judgement.distances import (
     ks_p_value,
     percentile_cdf,
     psi,
+    values_from_percentiles,
 )
 from worker.profiling.judgement.tables import ContingencyTable, chi_square
 
@@ -153,3 +154,27 @@ def test_adjusted_residuals_by_hand() -> None:
     # The expected counts match scipy.stats.contingency.expected_freq.
     assert table.expected == pytest.approx(stats.contingency.expected_freq(table.counts))
     assert table.cochran_ok()
+
+
+def test_small_samples_are_read_back_from_their_percentiles() -> None:
+    # Dataset: Fisher's iris in scikit-learn, 50 flowers per species: few enough that the
+    # 101 percentiles fix every sorted value.
+    iris = load_iris()
+    for species in range(3):
+        petal = np.sort(iris.data[iris.target == species, 2])
+        back = values_from_percentiles(_percentiles(petal), len(petal))
+        assert back is not None
+        assert back == pytest.approx(petal, abs=1e-12)
+    setosa, virginica = (np.sort(iris.data[iris.target == s, 2]) for s in (0, 2))
+    assert ks_exact(
+        values_from_percentiles(_percentiles(setosa), 50),
+        values_from_percentiles(_percentiles(virginica), 50),
+    ) == pytest.approx(stats.ks_2samp(setosa, virginica).statistic, abs=1e-12)  # scipy
+
+
+def test_larger_or_mismatched_samples_are_not_read_back() -> None:
+    rng = np.random.default_rng(8)
+    sample = rng.normal(0, 1, 52)
+    assert values_from_percentiles(_percentiles(sample), 52) is None  # more than 51 values
+    small = rng.normal(0, 1, 30)
+    assert values_from_percentiles(_percentiles(small), 31) is None  # the count does not fit

@@ -47,6 +47,18 @@ def test_numeric_drift_against_scipy_on_the_raw_values() -> None:
     assert column["psi"] > T.psi_warning
 
 
+def test_exact_ks_for_small_columns_from_their_percentiles() -> None:
+    rng = _rng()
+    old, new = np.round(rng.normal(5, 1, 40), 2), np.round(rng.normal(5.8, 1, 35), 2)
+    base = profile_of([numeric_column("depth_m", old.tolist())])
+    target = profile_of([numeric_column("depth_m", new.tolist())])
+    column = _column(compare_profiles(base, target, thresholds=T), "depth_m")
+    reference = stats.ks_2samp(old, new, method="exact")  # scipy.stats.ks_2samp, exact
+    assert column["ks_exact"] is True
+    assert column["ks"] == pytest.approx(reference.statistic, abs=1e-12)
+    assert column["ks_p_value"] == pytest.approx(reference.pvalue, rel=1e-9)
+
+
 def test_exact_ks_when_both_profiles_keep_the_values() -> None:
     rng = _rng()
     old, new = np.round(rng.normal(5, 1, 40), 1), np.round(rng.normal(5.6, 1, 35), 1)
@@ -137,3 +149,20 @@ def test_drift_document_has_the_design_fields_and_is_json() -> None:
     expected = {"name", "kind", "psi", "ks", "mean_shift_sd", "missing_share_change",
                 "new_labels", "vanished_labels", "chi2_p_value", "js_distance"}  # fmt: skip
     assert expected <= set(drift["columns"][0])
+
+
+def test_exact_ks_between_small_files_profiled_by_the_engine(tmp_path) -> None:
+    from worker.profiling import profile_file
+
+    rng = np.random.default_rng(2)
+    old, new = np.round(rng.normal(5, 1, 40), 2), np.round(rng.normal(5.6, 1, 33), 2)
+    for name, values in (("old.csv", old), ("new.csv", new)):
+        (tmp_path / name).write_text("depth_m\n" + "\n".join(map(str, values)) + "\n")
+    drift = compare_profiles(
+        profile_file(tmp_path / "old.csv"), profile_file(tmp_path / "new.csv"), thresholds=T
+    )
+    column = _column(drift, "depth_m")
+    reference = stats.ks_2samp(old, new)  # scipy.stats.ks_2samp on the raw values (exact)
+    assert column["ks_exact"] is True
+    assert column["ks"] == pytest.approx(reference.statistic, abs=1e-12)
+    assert column["ks_p_value"] == pytest.approx(reference.pvalue, rel=1e-9)
