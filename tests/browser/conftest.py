@@ -18,7 +18,14 @@ from pathlib import Path
 
 import httpx
 import pytest
-from playwright.sync_api import Browser, ConsoleMessage, Error, Page, sync_playwright
+from playwright.sync_api import (
+    Browser,
+    ConsoleMessage,
+    Error,
+    Page,
+    Response,
+    sync_playwright,
+)
 
 CHROMIUM = Path("/usr/bin/chromium")
 CHROMIUM_ARGS = [
@@ -72,8 +79,17 @@ def watch_page(page: Page, problems: PageProblems) -> Page:
     def on_error(error: Error) -> None:
         problems.append(f"uncaught exception: {error}")
 
+    def on_response(response: Response) -> None:
+        if response.status >= 400:
+            try:
+                body = response.text()[:300]
+            except Error:
+                body = "(no body)"
+            problems.append(f"HTTP {response.status} from {response.url}: {body}")
+
     page.on("console", on_console)
     page.on("pageerror", on_error)
+    page.on("response", on_response)
     return page
 
 
@@ -137,11 +153,13 @@ def server_environment(data_dir: Path) -> dict[str, str]:
 
 @pytest.fixture(scope="session")
 def live_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
-    """The base URL of a running ``tidewaiter serve`` with an empty, migrated database."""
+    """The base URL of a running ``tidewaiter serve`` loaded with the demo scenario."""
     data_dir = tmp_path_factory.mktemp("live-server")
     env = server_environment(data_dir)
-    command = [sys.executable, "-m", "server.cli"]
+    command = [str(Path(sys.executable).with_name("tidewaiter"))]
     subprocess.run([*command, "db", "upgrade"], env=env, cwd=REPO, check=True, capture_output=True)
+    # The demo scenario: its suppliers, deliveries and one account per role.
+    subprocess.run([*command, "demo", "load"], env=env, cwd=REPO, check=True, capture_output=True)
     port = _free_port()
     log = (data_dir / "server.log").open("w")
     process = subprocess.Popen(
@@ -170,3 +188,25 @@ def live_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
     except subprocess.TimeoutExpired:
         process.kill()
     log.close()
+
+
+DEMO_PASSWORD = "harbour-demo-only"
+"""The demo accounts' published password (server.security.demo_accounts)."""
+
+
+def sign_in(page: Page, base: str, name: str = "demo-reviewer") -> Page:
+    """Sign ``page`` in as the demo account ``name``."""
+    page.goto(f"{base}/sign-in")
+    page.get_by_label("Name").fill(name)
+    page.get_by_label("Password").fill(DEMO_PASSWORD)
+    page.get_by_role("button", name="Sign in").click()
+    page.wait_for_url(f"{base}/")
+    return page
+
+
+def intake_id(page: Page, base: str, name: str) -> int:
+    """The id of the intake whose file is ``name``, read from the intake list."""
+    page.goto(f"{base}/?name={name}")
+    href = page.get_by_role("link", name=name, exact=True).first.get_attribute("href")
+    assert href is not None
+    return int(href.rsplit("/", 1)[-1])

@@ -32,6 +32,10 @@
       var data = new FormData(decision);
       var message = document.getElementById("decision-message");
       if (!data.get("verdict")) { message.textContent = "Choose a verdict."; return; }
+      if (data.get("verdict") !== "accepted" && !String(data.get("reason") || "").trim()) {
+        message.textContent = "Say why: rejecting or accepting with caveats needs a reason.";
+        return;
+      }
       message.textContent = "";
       send("POST", "/api/v1/intakes/" + decision.dataset.intake + "/decisions", {
         verdict: data.get("verdict"), reason: data.get("reason") || "",

@@ -1,0 +1,100 @@
+"""The intake page: comments seen by a colleague, decisions, the crosstab explorer."""
+
+from __future__ import annotations
+
+import io
+from pathlib import Path
+
+import pandas as pd
+from playwright.sync_api import Page, expect
+
+from server.demo.scenario import deliveries
+from tests.browser.conftest import intake_id, screenshot_widths, sign_in
+
+LANDINGS = "brannock-landings-2031-w10.csv"
+TIDE = "gullwick-2031-03.csv"
+
+
+def demo_frame(name: str) -> pd.DataFrame:
+    content = next(d.content for d in deliveries() if d.filename == name)
+    return pd.read_csv(io.BytesIO(content), dtype=str)
+
+
+def test_comment_on_a_flag_is_seen_by_another_user(page: Page, new_page, live_server: str):
+    sign_in(page, live_server, "demo-reviewer")
+    number = intake_id(page, live_server, LANDINGS)
+    page.goto(f"{live_server}/intakes/{number}")
+    group = page.locator(".flag-group", has=page.locator("h3 a", has_text="price_per_kg"))
+    discussion = group.locator(".discussion").first
+    discussion.locator("summary").click()
+    text = "The clerk types 0 when the price is not known; ask them to leave it blank."
+    discussion.get_by_label("Comment").fill(text)
+    discussion.get_by_role("button", name="Post").click()
+    page.wait_for_load_state("load")
+    expect(group.locator(".comment-body").first).to_have_text(text)
+
+    colleague = sign_in(new_page(), live_server, "demo-admin")
+    colleague.goto(f"{live_server}/intakes/{number}")
+    comment = colleague.locator(".flag-group .comment-body", has_text=text)
+    expect(comment).to_have_count(1)
+    expect(colleague.locator(".comment-meta", has_text="demo-reviewer").first).to_be_visible()
+
+
+def test_decision_is_recorded_with_its_reason(page: Page, live_server: str) -> None:
+    sign_in(page, live_server, "demo-reviewer")
+    number = intake_id(page, live_server, TIDE)
+    page.goto(f"{live_server}/intakes/{number}")
+    form = page.locator("#decision-form")
+    form.get_by_label("reject").check()
+    form.get_by_role("button", name="Record the decision").click()
+    expect(page.locator("#decision-message")).to_contain_text(
+        "needs a reason"
+    )  # said before sending
+    form.get_by_label("Reason").fill("Probe dropouts written as -999 in 3 % of readings.")
+    form.get_by_role("button", name="Record the decision").click()
+    current = page.locator("#current-decision")
+    expect(current).to_contain_text("reject")
+    expect(current).to_contain_text("Probe dropouts written as -999")
+    expect(current).to_contain_text("demo-reviewer")
+
+
+def test_crosstab_explorer_with_a_filter_matches_pandas(page: Page, live_server: str) -> None:
+    sign_in(page, live_server)
+    page.goto(f"{live_server}/intakes/{intake_id(page, live_server, LANDINGS)}")
+    page.get_by_label("Rows", exact=True).select_option("species")
+    page.get_by_label("Columns", exact=True).select_option("grade")
+    page.get_by_label("Only rows where").select_option("vessel")
+    values = page.get_by_label("is", exact=True)
+    expect(values.locator("option[value='BB-003']")).to_have_count(1)
+    values.select_option("BB-003")
+    page.get_by_role("button", name="Cross").click()
+    table = page.locator("#explorer-table")
+    expect(table).to_be_visible()
+    expect(page.locator("#explorer-figure .main-svg").first).to_be_attached()
+
+    # Reference: pandas crosstab of the same file, rows where vessel is BB-003; rows with
+    # a missing grade are left out, as pandas does.
+    frame = demo_frame(LANDINGS)
+    expected = pd.crosstab(frame.loc[frame.vessel == "BB-003", "species"], frame["grade"])
+    shown_columns = table.locator("thead th").all_inner_texts()[1:]
+    assert shown_columns == list(expected.columns)
+    for body_row in table.locator("tbody tr").all():
+        label = body_row.locator("th").inner_text()
+        counts = [int(c) for c in body_row.locator("td").all_inner_texts()]
+        assert counts == expected.loc[label].tolist(), label
+    assert sorted(table.locator("tbody th").all_inner_texts()) == sorted(expected.index)
+    expect(page.locator("#explorer-summary")).to_contain_text(f"{int(expected.values.sum())} rows")
+
+
+def test_intake_page_at_both_widths(page: Page, live_server: str, screenshot_dir: Path) -> None:
+    sign_in(page, live_server)
+    page.goto(f"{live_server}/intakes/{intake_id(page, live_server, LANDINGS)}")
+    for _ in range(30):
+        page.mouse.wheel(0, 900)
+        page.wait_for_timeout(50)
+    page.wait_for_function(
+        "() => [...document.querySelectorAll('[data-figure]')].filter(e => e.offsetParent)"
+        ".every(e => e.dataset.state === 'drawn' && e.querySelector('.main-svg'))"
+    )
+    page.evaluate("window.scrollTo(0, 0)")
+    screenshot_widths(page, screenshot_dir, "intake")

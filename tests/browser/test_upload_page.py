@@ -1,0 +1,52 @@
+"""Upload through the page: bytes-sent progress, then the worker's, then the scorecard."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from playwright.sync_api import Page, expect
+
+from tests.browser.conftest import screenshot_widths, sign_in
+from tests.browser.landings import write_landings
+
+TIDE = "Gullwick tide-gauge station"
+
+
+def test_upload_shows_the_scorecard_without_a_reload(
+    page: Page, live_server: str, tmp_path: Path, screenshot_dir: Path
+) -> None:
+    sign_in(page, live_server)
+    page.goto(f"{live_server}/upload")
+    page.get_by_label("Supplier that sent the file").select_option(label=TIDE)
+    page.locator("#up-file").set_input_files(write_landings(tmp_path / "harbour-day.csv"))
+    expect(page.locator("#chosen-file")).to_contain_text("harbour-day.csv")
+    page.get_by_role("button", name="Upload and profile").click()
+    result = page.locator("#upload-result")
+    expect(result).to_be_visible(timeout=60_000)
+    assert page.locator("#send-progress").evaluate("bar => bar.value") == 1
+    assert page.locator("#profile-progress").is_visible()
+    expect(page.locator("#result-rows")).to_have_text("240")  # rows written by construction
+    expect(page.locator("#result-columns")).to_have_text("7")
+    assert page.locator("#result-score").inner_text().isdigit()
+    screenshot_widths(page, screenshot_dir, "upload-done")
+    page.locator("#result-link").click()
+    expect(page.get_by_role("heading", name="harbour-day.csv")).to_be_visible()
+
+
+def test_upload_errors_say_what_to_do(page: Page, live_server: str, tmp_path: Path) -> None:
+    sign_in(page, live_server)
+    page.goto(f"{live_server}/upload")
+    button = page.get_by_role("button", name="Upload and profile")
+    button.click()
+    expect(page.locator("#upload-message")).to_have_text("Choose the supplier that sent the file.")
+    page.get_by_label("Supplier that sent the file").select_option(label=TIDE)
+    button.click()
+    expect(page.locator("#upload-message")).to_have_text("Choose or drop a file first.")
+    # Bytes that are no table: stored, then refused by the engine with its reason.
+    garbage = tmp_path / "photo.csv"
+    garbage.write_bytes(bytes(range(256)) * 40)
+    page.locator("#up-file").set_input_files(garbage)
+    button.click()
+    message = page.locator("#upload-message")
+    expect(message).to_contain_text("could not be read", timeout=60_000)
+    expect(message).to_contain_text("Check that it is a CSV")
