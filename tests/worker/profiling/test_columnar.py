@@ -26,9 +26,10 @@ def test_copy_holds_every_raw_batch_in_order(tmp_path: Path) -> None:
     table = pq.read_table(target)
     expected = pa.Table.from_batches(batches())
     assert table.equals(expected)  # raw texts kept: untrimmed, "NA" as delivered
-    # Batches of 30 rows gathered into groups of at least 64 rows: 90 + 60.
-    assert pq.ParquetFile(target).metadata.row_group(0).num_rows == 90
-    assert pq.ParquetFile(target).num_row_groups == 2
+    # Batches of 30 rows gathered until 64 rows wait, then written in groups of at most 64.
+    metadata = pq.ParquetFile(target).metadata
+    sizes = [metadata.row_group(i).num_rows for i in range(metadata.num_row_groups)]
+    assert sizes == [64, 26, 60]
     assert not (tmp_path / "copy.parquet.partial").exists()
 
 
@@ -54,3 +55,14 @@ def test_empty_table_gets_a_readable_copy(tmp_path: Path) -> None:
     target = tmp_path / "copy.parquet"
     ColumnarCopy(target).close(pa.schema([("a", pa.string())]))
     assert pq.read_table(target).num_rows == 0
+
+
+def test_a_failing_writer_is_reported_not_hidden(tmp_path: Path) -> None:
+    target = tmp_path / "copy.parquet"
+    (tmp_path / "copy.parquet.partial").mkdir()  # the writer cannot create its file
+    copy = ColumnarCopy(target, row_group_rows=10)
+    with pytest.raises(RuntimeError, match="columnar copy failed"):
+        for batch in batches() * 20:
+            copy.write(batch)
+        copy.close()
+    assert not target.exists()

@@ -19,6 +19,9 @@ from collections.abc import Mapping
 import numpy as np
 import pyarrow as pa
 import pyarrow.compute as pc
+from scipy import sparse
+
+from worker.profiling.relations.comoments import ShiftedBatch
 
 
 class LabelIndex:
@@ -136,69 +139,87 @@ class PairCounts:
 class GroupMoments:
     """Per label, the n, mean and squared deviations of each numeric column (for eta).
 
-    Kept as mean and M2 rather than raw sums of squares, merged with Chan's
-    update, so large offsets do not cancel.
+    For each label column: three (labels × numeric columns) matrices. Kept as
+    mean and M2 rather than raw sums of squares and merged with Chan's update,
+    so large offsets do not cancel.
     """
 
-    def __init__(self) -> None:
-        self.stats: dict[tuple[str, str], tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+    def __init__(self, numeric: list[str]) -> None:
+        self.numeric = list(numeric)
+        self.stats: dict[str, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
 
     def update(
         self,
-        numbers: Mapping[str, np.ndarray],
+        values: ShiftedBatch,
         codes: Mapping[str, np.ndarray],
         sizes: Mapping[str, int],
     ) -> None:
+        """Add one batch: per label column, one sparse product gives every numeric
+        column's per-label count, sum and sum of squares (of values shifted by the
+        batch's column means, so the squares do not swamp the spread)."""
+        if not values.names or not codes:
+            return
+        shift, z = values.shift, values.z
+        stacked = np.hstack([values.valid.astype(np.float64), z, z * z])
+        p = len(values.names)
         for label_name, code in codes.items():
             size = sizes[label_name]
-            for num_name, values in numbers.items():
-                keep = (code >= 0) & ~np.isnan(values)
-                g, x = code[keep], values[keep]
-                n = np.bincount(g, minlength=size).astype(np.float64)
-                with np.errstate(invalid="ignore", divide="ignore"):
-                    mean = np.where(n > 0, np.bincount(g, x, minlength=size) / n, 0.0)
-                m2 = np.bincount(g, (x - mean[g]) ** 2, minlength=size)
-                self._absorb((num_name, label_name), (n, mean, m2), size)
+            rows = np.flatnonzero(code >= 0)
+            onehot = sparse.csr_matrix(
+                (np.ones(len(rows)), (code[rows], rows)), shape=(size, len(code))
+            )
+            sums = np.asarray(onehot @ stacked)
+            n, total, squares = sums[:, :p], sums[:, p : 2 * p], sums[:, 2 * p :]
+            with np.errstate(invalid="ignore", divide="ignore"):
+                inner = np.where(n > 0, total / n, 0.0)
+            m2 = np.maximum(squares - total * inner, 0.0)
+            mean = np.where(n > 0, inner + shift, 0.0)
+            self._absorb(label_name, (n, mean, m2), size)
 
-    def _absorb(self, key, batch, size: int, remap: np.ndarray | None = None) -> None:
+    def _absorb(self, label_name: str, batch, size: int, remap: np.ndarray | None = None):
         n_b, mean_b, m2_b = batch
         if remap is not None:
             n_b, mean_b, m2_b = (_scatter(v, remap, size) for v in (n_b, mean_b, m2_b))
-        old = self.stats.get(key)
+        width = len(self.numeric)
+        old = self.stats.get(label_name)
         if old is None:
-            n_a = mean_a = m2_a = np.zeros(size)
-        else:
-            n_a, mean_a, m2_a = (_pad(v, size) for v in old)
+            old = (np.zeros((size, width)),) * 3
+        n_a, mean_a, m2_a = (_pad(v, size) for v in old)
         n_b, mean_b, m2_b = (_pad(v, size) for v in (n_b, mean_b, m2_b))
         n = n_a + n_b
         delta = mean_b - mean_a
         with np.errstate(invalid="ignore", divide="ignore"):
             mean = np.where(n > 0, mean_a + delta * np.where(n > 0, n_b / n, 0.0), 0.0)
             m2 = m2_a + m2_b + np.where(n > 0, delta * delta * n_a * n_b / n, 0.0)
-        self.stats[key] = (n, mean, m2)
+        self.stats[label_name] = (n, mean, m2)
 
     def merge(self, other: GroupMoments, remap: Mapping[str, np.ndarray], sizes) -> GroupMoments:
-        merged = GroupMoments()
+        merged = GroupMoments(self.numeric)
         merged.stats = dict(self.stats)
-        for key, value in other.stats.items():
-            label_name = key[1]
-            merged._absorb(key, value, sizes[label_name], remap[label_name])
+        for label_name, value in other.stats.items():
+            merged._absorb(label_name, value, sizes[label_name], remap[label_name])
         return merged
 
     def drop(self, dropped: set[str]) -> None:
-        for key in list(self.stats):
-            if key[1] in dropped:
-                del self.stats[key]
+        for label_name in list(self.stats):
+            if label_name in dropped:
+                del self.stats[label_name]
+
+    def pairs(self):
+        """((numeric column, label column), (n, mean, m2) per label) for every pair."""
+        for label_name, (n, mean, m2) in self.stats.items():
+            for j, num_name in enumerate(self.numeric):
+                yield (num_name, label_name), (n[:, j], mean[:, j], m2[:, j])
 
 
 def _pad(values: np.ndarray, size: int) -> np.ndarray:
     if len(values) >= size:
         return values
-    return np.concatenate([values, np.zeros(size - len(values))])
+    return np.concatenate([values, np.zeros((size - len(values), *values.shape[1:]))])
 
 
 def _scatter(values: np.ndarray, remap: np.ndarray, size: int) -> np.ndarray:
-    out = np.zeros(size)
+    out = np.zeros((size, *values.shape[1:]))
     out[remap[: len(values)]] = values
     return out
 

@@ -54,6 +54,33 @@ class PairMoments:
         return None if slope is None else float(self.mean_b - slope * self.mean_a)
 
 
+@dataclass(frozen=True)
+class ShiftedBatch:
+    """A batch of numeric columns as a matrix, shifted by each column's batch mean.
+
+    ``valid`` is True where a value is present; ``z`` is value − shift there and 0
+    elsewhere, so sums over z skip missing values by themselves.
+    """
+
+    names: list[str]
+    valid: np.ndarray
+    z: np.ndarray
+    shift: np.ndarray
+
+    @classmethod
+    def of(cls, numbers: Mapping[str, np.ndarray], names: list[str]) -> ShiftedBatch:
+        rows = len(numbers[names[0]]) if names else 0
+        x = np.empty((rows, len(names)))
+        for j, name in enumerate(names):
+            x[:, j] = numbers[name]
+        valid = ~np.isnan(x)
+        x[~valid] = 0.0
+        shift = x.sum(axis=0) / np.maximum(valid.sum(axis=0), 1)
+        x -= shift
+        x[~valid] = 0.0
+        return cls(list(names), valid, x, shift)
+
+
 class CoMoments:
     """Co-moments of all pairs of ``columns``, as p×p matrices (entry [i, j]: column i given j).
 
@@ -72,17 +99,16 @@ class CoMoments:
 
     def update(self, numbers: Mapping[str, np.ndarray]) -> None:
         """Add one batch: ``numbers`` maps each column to float64 values, NaN where missing."""
-        if not self.columns:
+        if self.columns:
+            self.update_shifted(ShiftedBatch.of(numbers, self.columns))
+
+    def update_shifted(self, batch_values: ShiftedBatch) -> None:
+        """Add one batch already shifted by its column means (shared with other states)."""
+        valid, z, shift = batch_values.valid, batch_values.z, batch_values.shift
+        if z.shape[0] == 0:
             return
-        x = np.column_stack([np.asarray(numbers[name], dtype=np.float64) for name in self.columns])
-        if x.shape[0] == 0:
-            return
-        valid = ~np.isnan(x)
         w = valid.astype(np.float64)
         counts = w.T @ w  # [i, j]: rows where both are present
-        present = valid.sum(axis=0)
-        shift = np.where(valid, x, 0.0).sum(axis=0) / np.maximum(present, 1)
-        z = np.where(valid, x - shift, 0.0)
         sums = z.T @ w  # [i, j]: Σ z_i over rows where j (and so i) are present
         squares = (z * z).T @ w
         cross = z.T @ z

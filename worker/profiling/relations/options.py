@@ -13,11 +13,12 @@ class RelationsOptions(BaseModel):
     """Bounds and thresholds of pairs, twins, crosstabs, missing-together and duplicate rows."""
 
     rank_sample_rows: int = Field(
-        1_000_000,
+        200_000,
         ge=10,
         description="Rows kept in the uniform row sample that Spearman is computed on; "
-        "Spearman is exact when the table has at most this many rows (common practice, "
-        "the same bound as the exact per-column statistics).",
+        "Spearman is exact when the table has at most this many rows, else its pairs state "
+        "the sample size (common practice: the standard error of rho on 200,000 rows is "
+        "about 0.002, and ranking costs grow with the square of the numeric columns).",
     )
     label_bound: int = Field(
         200,

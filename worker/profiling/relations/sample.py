@@ -47,6 +47,7 @@ class RowSample:
         self._parts: list[tuple[np.ndarray, np.ndarray, np.ndarray]] = []
         self._buffered = 0
         self._threshold: np.uint64 | None = None  # no row with a key at or above it can stay
+        self._sorted = False  # True when _parts is one part in row order
 
     @property
     def exact(self) -> bool:
@@ -84,11 +85,12 @@ class RowSample:
     def _add(self, keys: np.ndarray, rows: np.ndarray, values: np.ndarray) -> None:
         self._parts.append((keys, rows, values))
         self._buffered += len(keys)
+        self._sorted = False
         if self._buffered > 2 * self.k:
             self._compact()
 
     def _compact(self) -> None:
-        if not self._parts:
+        if not self._parts or (len(self._parts) == 1 and self._sorted):
             return
         keys = np.concatenate([part[0] for part in self._parts])
         rows = np.concatenate([part[1] for part in self._parts])
@@ -100,6 +102,7 @@ class RowSample:
         order = np.argsort(rows, kind="stable")
         self._parts = [(keys[order], rows[order], values[order])]
         self._buffered = len(keys)
+        self._sorted = True
 
     @property
     def rows(self) -> np.ndarray:

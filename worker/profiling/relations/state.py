@@ -11,7 +11,6 @@ import copy
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
-from scipy.stats import rankdata
 
 from worker.profiling.relations.association import (
     GroupMoments,
@@ -20,7 +19,7 @@ from worker.profiling.relations.association import (
     cramers_v,
     eta,
 )
-from worker.profiling.relations.comoments import CoMoments
+from worker.profiling.relations.comoments import CoMoments, ShiftedBatch
 from worker.profiling.relations.crosstab import crosstab_statistics
 from worker.profiling.relations.missing_together import MissingTogether
 from worker.profiling.relations.sample import RowSample
@@ -46,7 +45,7 @@ class RelationsState:
         self.sample = RowSample(self.numeric, relations.rank_sample_rows)
         self.codes = LabelCodes(self.labels, relations.label_bound)
         self.pair_counts = PairCounts(self.labels)
-        self.groups = GroupMoments()
+        self.groups = GroupMoments(self.numeric)
         self.missing: MissingTogether | None = None
 
     def update(self, batch: PreparedBatch) -> None:
@@ -55,12 +54,13 @@ class RelationsState:
             self.missing = MissingTogether(list(batch.missing))
         self.missing.update(batch.missing)
         numbers = {name: batch.numbers[name] for name in self.numeric}
-        self.comoments.update(numbers)
+        shifted = ShiftedBatch.of(numbers, self.numeric)
+        self.comoments.update_shifted(shifted)
         self.sample.update(numbers, batch.offset)
         codes = self.codes.encode({name: batch.labels[name] for name in self.labels})
         sizes = {name: len(self.codes.index[name]) for name in self.labels}
         self.pair_counts.update(codes, sizes)
-        self.groups.update(numbers, codes, sizes)
+        self.groups.update(shifted, codes, sizes)
 
     def merge(self, other: RelationsState) -> RelationsState:
         """Combine with a state over other rows of the same table (neither is changed)."""
@@ -123,7 +123,7 @@ class RelationsState:
                 )
                 if doc is not None:
                     crosstabs.append(doc)
-        for (num_name, label_name), (n, mean, m2) in self.groups.stats.items():
+        for (num_name, label_name), (n, mean, m2) in self.groups.pairs():
             if num_name not in numeric or label_name not in labels:
                 continue
             value, count = eta(n, mean, m2)
@@ -140,29 +140,45 @@ class RelationsState:
         }
 
     def _spearman(self, numeric: list[str]) -> list[dict[str, Any]]:
-        """Spearman's rho on the row sample (every row while the table fits in it)."""
+        """Spearman's rho on the row sample (every row while the table fits in it).
+
+        Each column is sorted once; a pair's ranks over its complete rows are
+        then read off that order in linear time (ties get their average rank,
+        as scipy.stats.rankdata gives).
+        """
         sample = self.sample
         exact = sample.exact
         values = {name: sample.column(name) for name in numeric}
         present = {name: ~np.isnan(column) for name, column in values.items()}
-        ranks: dict[str, np.ndarray] = {}
+        order = {name: np.argsort(column, kind="stable") for name, column in values.items()}
         out = []
         for i, a in enumerate(numeric):
             for b in numeric[i + 1 :]:
                 both = present[a] & present[b]
                 n = int(both.sum())
-                if n == len(values[a]):  # no missing value: ranks of whole columns are reused
-                    ra = ranks.setdefault(a, rankdata(values[a]))
-                    rb = ranks.setdefault(b, rankdata(values[b]))
-                else:
-                    ra, rb = rankdata(values[a][both]), rankdata(values[b][both])
-                rho = _pearson(ra, rb) if n > 2 else None
+                rho = None
+                if n > 2:
+                    ra = _ranks_within(values[a], order[a], both)
+                    rb = _ranks_within(values[b], order[b], both)
+                    rho = _pearson(ra, rb)
                 doc: dict[str, Any] = {"a": a, "b": b, "method": "spearman", "value": rho, "n": n}
                 doc["exact"] = exact
                 if not exact:
                     doc["sample"] = len(values[a])
                 out.append(doc)
         return out
+
+
+def _ranks_within(values: np.ndarray, order: np.ndarray, keep: np.ndarray) -> np.ndarray:
+    """Average ranks (1-based) of values[keep], in row order, from the sorting ``order``."""
+    chosen = order[keep[order]]  # rows kept, in ascending order of value
+    ordered = values[chosen]
+    starts = np.flatnonzero(np.r_[True, ordered[1:] != ordered[:-1]])
+    sizes = np.diff(np.r_[starts, len(ordered)])
+    average = starts + (sizes + 1) / 2.0
+    ranks = np.empty(len(values))
+    ranks[chosen] = np.repeat(average, sizes)
+    return ranks[keep]
 
 
 def _pearson(x: np.ndarray, y: np.ndarray) -> float | None:

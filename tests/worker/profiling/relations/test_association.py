@@ -15,6 +15,7 @@ from worker.profiling.relations.association import (
     cramers_v,
     eta,
 )
+from worker.profiling.relations.comoments import ShiftedBatch
 
 
 @pytest.mark.parametrize("shape", [(2, 2), (3, 4), (5, 2), (6, 6)])
@@ -82,11 +83,12 @@ def test_eta_matches_direct_sums_and_one_way_anova() -> None:
     shift = {"north": 0.0, "south": 1.5, "east": -0.7}
     x = np.array([shift[g] for g in groups]) + rng.normal(1000, 1, 2000)
     codes = LabelCodes(["g"], 10)
-    moments = GroupMoments()
+    moments = GroupMoments(["x"])
     for lo in range(0, 2000, 300):
         encoded = codes.encode({"g": pa.array(groups[lo : lo + 300])})
-        moments.update({"x": x[lo : lo + 300]}, encoded, {"g": len(codes.index["g"])})
-    value, n = eta(*moments.stats[("x", "g")])
+        values = ShiftedBatch.of({"x": x[lo : lo + 300]}, ["x"])
+        moments.update(values, encoded, {"g": len(codes.index["g"])})
+    value, n = eta(*dict(moments.pairs())[("x", "g")])
     assert n == 2000
     # Direct computation: eta = sqrt(between-group SS / total SS) (Fisher 1925).
     grand = x.mean()

@@ -136,3 +136,16 @@ def test_chunks_merged_equal_one_pass(cuts, seed) -> None:
         assert mine["value"] == pytest.approx(theirs["value"], rel=1e-9)
     assert [c["counts"] for c in result["crosstabs"]] == [c["counts"] for c in one["crosstabs"]]
     assert result["missing_together"] == one["missing_together"]
+
+
+def test_ranks_within_match_scipy_rankdata() -> None:
+    from scipy.stats import rankdata
+
+    from worker.profiling.relations.state import _ranks_within
+
+    rng = np.random.default_rng(13)
+    values = rng.integers(0, 30, 5000).astype(float)  # many ties
+    values[rng.random(5000) < 0.1] = np.nan
+    keep = ~np.isnan(values) & (rng.random(5000) < 0.7)
+    ranks = _ranks_within(values, np.argsort(values, kind="stable"), keep)
+    assert np.array_equal(ranks, rankdata(values[keep]))  # reference: scipy, average ties
