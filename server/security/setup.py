@@ -17,6 +17,7 @@ from server.api.errors import error_response
 from server.security.access import Forbidden, SignInRequired
 from server.security.audit import AuditMiddleware
 from server.security.headers import SecurityHeadersMiddleware
+from server.security.paths import TraversalGuardMiddleware
 from server.settings import Settings
 from server.store import session_scope
 
@@ -40,6 +41,7 @@ def sign_in_url(request: Request) -> str:
 def install_security(app: FastAPI, settings: Settings) -> None:
     """Add the security middleware and refusal handlers to ``app``."""
     app.add_middleware(AuditMiddleware, session_scope=lambda: session_scope(settings))
+    app.add_middleware(TraversalGuardMiddleware)
     app.add_middleware(SecurityHeadersMiddleware, https=settings.security.https)
 
     @app.exception_handler(SignInRequired)

@@ -6,7 +6,13 @@ from pathlib import Path
 
 import pytest
 
-from server.security.paths import UnsafeName, safe_name, safe_sheet_name, within
+from server.security.paths import (
+    UnsafeName,
+    looks_like_traversal,
+    safe_name,
+    safe_sheet_name,
+    within,
+)
 
 # Attack forms from OWASP's Path Traversal page: parent references, absolute paths,
 # backslashes, encoded dots and slashes, NUL bytes.
@@ -65,3 +71,13 @@ def test_plain_sheet_names_pass(name: str) -> None:
 def test_hostile_sheet_names_are_refused(name: str) -> None:
     with pytest.raises(UnsafeName):
         safe_sheet_name(name)
+
+
+@pytest.mark.parametrize("text", ["../x", "..\\x", "..", " .. ", "a\x00b", "x/../y"])
+def test_traversal_is_recognised(text: str) -> None:
+    assert looks_like_traversal(text)
+
+
+@pytest.mark.parametrize("text", ["a..b", "...", "v1.2", "north/south", "2.5"])
+def test_ordinary_values_are_not_traversal(text: str) -> None:
+    assert not looks_like_traversal(text)
