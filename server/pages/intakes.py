@@ -11,7 +11,7 @@ from sqlalchemy import select
 from server.api.deps import CurrentUser, SessionDep, SettingsDep
 from server.api.errors import ApiError
 from server.pages.intake_view import intake_context
-from server.pages.listing import SORTS, STATUSES, ListFilters, intake_page
+from server.pages.listing import DECISIONS, SORTS, STATUSES, ListFilters, intake_page
 from server.pages.templating import templates
 from server.store import Intake, Supplier
 
@@ -36,13 +36,14 @@ def intake_list(
     user: CurrentUser,
     supplier: str | None = Query(None),
     status: str | None = Query(None),
+    decision: str | None = Query(None),
     since: str | None = Query(None),
     until: str | None = Query(None),
     name: str = Query("", max_length=200),
     sort: str = Query("newest"),
     page: int = Query(1, ge=1),
 ) -> HTMLResponse:
-    """Every intake, filtered by supplier, status, date and name, sorted, a page at a time.
+    """Every intake, filtered by supplier, status, decision, date and name, sorted, paged.
 
     Unusable filter values (a malformed date, an unknown sort) are ignored rather
     than refused, so a hand-edited address still shows a list.
@@ -50,6 +51,7 @@ def intake_list(
     filters = ListFilters(
         supplier=_int(supplier),
         status=status if status in STATUSES else None,
+        decision=decision if decision in DECISIONS else None,
         since=_date(since),
         until=_date(until),
         name=name,
@@ -67,6 +69,7 @@ def intake_list(
             "suppliers": suppliers,
             "sorts": SORTS,
             "statuses": STATUSES,
+            "decisions": DECISIONS,
             "user": user,
         },
     )

@@ -1,8 +1,8 @@
 """The intake list's query: filters, sort orders and one page of rows.
 
 Only what a row shows is read: the intake, its supplier's name, the profile's
-headline numbers, and the ``flags`` and ``verdict`` members of the profile
-document (extracted by the database, so a page never loads whole documents).
+headline numbers, the judgement's score, suggested verdict and flag counts, and
+the newest decision; a page never loads whole profile documents.
 A page is one indexed ``ORDER BY … LIMIT … OFFSET`` and one ``COUNT``, which
 stays fast with tens of thousands of intakes.
 """
@@ -18,6 +18,7 @@ from sqlalchemy import ColumnElement, func, select
 from sqlalchemy.orm import Session
 
 from server.store import Intake, Profile, Supplier
+from server.store.reviews import Decision, Judgement, Verdict
 
 PAGE_SIZE = 50
 SORTS: dict[str, str] = {
@@ -28,6 +29,12 @@ SORTS: dict[str, str] = {
     "name": "file name",
 }
 STATUSES = ("queued", "profiling", "ready", "failed")
+DECISIONS = {
+    "undecided": "not decided",
+    Verdict.accepted.value: "accepted",
+    Verdict.accepted_with_caveats.value: "accepted with caveats",
+    Verdict.rejected.value: "rejected",
+}
 
 
 @dataclass
@@ -36,6 +43,7 @@ class ListFilters:
 
     supplier: int | None = None
     status: str | None = None
+    decision: str | None = None
     since: date | None = None
     until: date | None = None
     name: str = ""
@@ -47,6 +55,7 @@ class ListFilters:
         values = {
             "supplier": self.supplier,
             "status": self.status,
+            "decision": self.decision,
             "since": self.since,
             "until": self.until,
             "name": self.name,
@@ -67,6 +76,7 @@ class ListRow:
     columns: int | None
     score: float | None
     verdict: str | None
+    decision: str | None
     severities: Counter[str] = field(default_factory=Counter)
 
     @property
@@ -85,8 +95,24 @@ class ListPage:
     pages: int
 
 
+def _latest_decision() -> Any:
+    """The verdict of an intake's newest decision, as a correlated scalar subquery."""
+    return (
+        select(Decision.verdict)
+        .where(Decision.intake_id == Intake.id)
+        .order_by(Decision.created_at.desc(), Decision.id.desc())
+        .limit(1)
+        .correlate(Intake)
+        .scalar_subquery()
+    )
+
+
 def _conditions(filters: ListFilters) -> list[ColumnElement[bool]]:
     where: list[ColumnElement[bool]] = []
+    if filters.decision == "undecided":
+        where.append(_latest_decision().is_(None))
+    elif filters.decision in DECISIONS:
+        where.append(_latest_decision() == filters.decision)
     if filters.supplier is not None:
         where.append(Intake.supplier_id == filters.supplier)
     if filters.status in STATUSES:
@@ -102,13 +128,17 @@ def _conditions(filters: ListFilters) -> list[ColumnElement[bool]]:
     return where
 
 
+SCORE = func.coalesce(Judgement.overall_score, Profile.overall_score)
+"""The judged score (rules and drift included) when there is one, else the profile's."""
+
+
 def _order(sort: str) -> list[Any]:
     if sort == "oldest":
         return [Intake.created_at.asc(), Intake.id.asc()]
     if sort == "score":
-        return [Profile.overall_score.asc().nulls_last(), Intake.id.desc()]
+        return [SCORE.asc().nulls_last(), Intake.id.desc()]
     if sort == "-score":
-        return [Profile.overall_score.desc().nulls_last(), Intake.id.desc()]
+        return [SCORE.desc().nulls_last(), Intake.id.desc()]
     if sort == "name":
         return [Intake.original_name.asc(), Intake.id.desc()]
     return [Intake.created_at.desc(), Intake.id.desc()]
@@ -126,21 +156,26 @@ def intake_page(session: Session, filters: ListFilters, page_size: int = PAGE_SI
             Supplier.name,
             Profile.rows,
             Profile.columns,
-            Profile.overall_score,
-            Profile.document["verdict"].as_string(),
-            Profile.document["flags"],
+            SCORE,
+            func.coalesce(Judgement.suggested_verdict, Profile.document["verdict"].as_string()),
+            Judgement.critical,
+            Judgement.warnings,
+            Judgement.infos,
+            _latest_decision(),
         )
         .join(Supplier, Supplier.id == Intake.supplier_id)
         .outerjoin(Profile, Profile.intake_id == Intake.id)
+        .outerjoin(Judgement, Judgement.intake_id == Intake.id)
         .where(*where)
         .order_by(*_order(filters.sort))
         .limit(page_size)
         .offset((page - 1) * page_size)
     )
     rows = []
-    for intake, supplier_name, n_rows, n_columns, score, verdict, flags in session.execute(
-        statement
-    ):
-        severities = Counter(str(f.get("severity")) for f in flags or [] if isinstance(f, dict))
-        rows.append(ListRow(intake, supplier_name, n_rows, n_columns, score, verdict, severities))
+    for record in session.execute(statement):
+        intake, name, n_rows, n_columns, score, verdict, critical, warning, info, decision = record
+        severities = Counter(
+            {"critical": critical or 0, "warning": warning or 0, "info": info or 0}
+        )
+        rows.append(ListRow(intake, name, n_rows, n_columns, score, verdict, decision, severities))
     return ListPage(rows=rows, total=total, page=page, pages=pages)
