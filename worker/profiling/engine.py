@@ -70,9 +70,14 @@ def profile_file(
                 if writer is not None:
                     writer.write(raw)
                 report("reading", source.bytes_read() / max(source.total_bytes, 1))
-        finally:
+        except BaseException:
             if writer is not None:
-                writer.close()
+                writer.abort()  # no half copy left where a whole one is expected
+            raise
+        else:
+            if writer is not None:
+                writer.close(_text_schema(source.column_names))
+        finally:
             if pool is not None:
                 pool.shutdown()
         report("summarising", 1.0)
@@ -327,6 +332,11 @@ class _Digest:
     def result(self) -> str | None:
         self._thread.join()
         return self._value
+
+
+def _text_schema(names: list[str]) -> pa.Schema:
+    """The schema of the columnar copy of a table without rows: every column text."""
+    return pa.schema([(name, pa.string()) for name in names])
 
 
 def _columnar_writer(path: Path | None) -> Any:

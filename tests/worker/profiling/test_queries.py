@@ -161,3 +161,26 @@ def test_typed_parquet_columns_are_labels_too(tmp_path: Path) -> None:
     with ColumnarCopy(path) as copy:
         copy.write(pa.record_batch({"crew": pa.array([3, 4, 3, None]), "dock": list("abab")}))
     assert label_counts(path, "crew", {"dock": "a"}) == [{"value": "3", "count": 2, "share": 1.0}]
+
+
+def test_questions_over_the_copy_the_engine_wrote(tmp_path: Path) -> None:
+    from worker.profiling import profile_file
+
+    frame = crew(600)
+    csv_path = tmp_path / "crew.csv"
+    frame.to_csv(csv_path, index=False)
+    copy_path = tmp_path / "crew.parquet"
+    profile = profile_file(csv_path, columnar_copy=copy_path)
+    assert not (tmp_path / "crew.parquet.partial").exists()
+    # The profile's own label counts (engine), folded by trimmed label, agree with the copy's.
+    (role,) = [c for c in profile["columns"] if c["name"] == "role"]
+    engine: dict[str, int] = {}
+    for item in role["labels"]["top"]:
+        engine[item["value"].strip()] = engine.get(item["value"].strip(), 0) + item["count"]
+    counts = {c["value"]: c["count"] for c in label_counts(copy_path, "role")}
+    assert counts == engine
+    # The profile's crosstab and the on-demand one without a filter are the same table.
+    (stored,) = [c for c in profile["crosstabs"] if {c["a"], c["b"]} == {"gender", "role"}]
+    asked = crosstab(copy_path, stored["a"], stored["b"])
+    assert asked["counts"] == stored["counts"]
+    assert asked["chi2"] == pytest.approx(stored["chi2"], rel=1e-12)
