@@ -147,15 +147,44 @@ def _family(kind: str | None) -> str | None:
     return None
 
 
+RENAME_PAIRS_MAX = 2_000
+"""Most (removed, added) column pairs whose distributions are compared to find renames."""
+
+KS_CRITICAL_5 = 1.358
+"""Smirnov's asymptotic 5 % critical value c(0.05) of sqrt(n·m/(n+m))·D (Smirnov 1948)."""
+
+
+def _rename_bound(base: dict[str, Any], target: dict[str, Any], t: FlagThresholds) -> float:
+    """Largest KS distance still taken for the same column: the threshold, or sampling noise.
+
+    Two samples of one distribution differ by up to c(0.05)·sqrt((n+m)/(n·m)) by
+    chance (95 % of the time), so small columns get that much room.
+    """
+    n, m = int(base.get("count") or 0), int(target.get("count") or 0)
+    if n == 0 or m == 0:
+        return t.rename_max_distance
+    return max(t.rename_max_distance, KS_CRITICAL_5 * ((n + m) / (n * m)) ** 0.5)
+
+
+def _may_match(base: dict[str, Any], target: dict[str, Any]) -> bool:
+    """Cheap first test before a distance: same family, overlapping middle halves (numeric)."""
+    family = _family(base.get("kind"))
+    if family is None or family != _family(target.get("kind")):
+        return False
+    if family == "labels":
+        b = {str(i["value"]) for i in (base.get("labels") or {}).get("top") or []}
+        g = {str(i["value"]) for i in (target.get("labels") or {}).get("top") or []}
+        return bool(b & g)
+    b, g = base.get("numeric") or {}, target.get("numeric") or {}
+    if not (b.get("percentiles") and g.get("percentiles")):
+        return False
+    return b["q1"] <= g["q3"] and g["q1"] <= b["q3"]
+
+
 def _distance(base: dict[str, Any], target: dict[str, Any], t: FlagThresholds) -> float | None:
     """How far apart two columns' distributions are (KS or Jensen-Shannon), for renames."""
-    family = _family(base.get("kind"))
-    if family != _family(target.get("kind")) or family is None:
-        return None
-    if family == "numeric":
-        b, g = base.get("numeric") or {}, target.get("numeric") or {}
-        if not (b.get("percentiles") and g.get("percentiles")):
-            return None
+    if _family(base.get("kind")) == "numeric":
+        b, g = base["numeric"], target["numeric"]
         return ks_from_percentiles(b["percentiles"], g["percentiles"])
     return _label_drift(base, target, t)["js_distance"]
 
@@ -163,26 +192,40 @@ def _distance(base: dict[str, Any], target: dict[str, Any], t: FlagThresholds) -
 def _renames(
     removed: list[dict[str, Any]], added: list[dict[str, Any]], t: FlagThresholds
 ) -> list[dict[str, Any]]:
-    """Pairs (removed, added) whose distributions match: the same column under a new name."""
+    """Pairs (removed, added) whose distributions match: the same column under a new name.
+
+    A numeric pair matches when its KS distance is within ``_rename_bound``, a
+    label pair when its Jensen-Shannon distance is within the threshold; each
+    column is matched at most once, closest pairs first, and only when no
+    other column fits nearly as well (a rival within twice the distance makes
+    the pair too ambiguous to call). At most
+    RENAME_PAIRS_MAX pairs are compared, so a file whose every column was
+    renamed stays quick (the evidence says when the search was cut short).
+    """
+    pairs = [(old, new) for old in removed for new in added if _may_match(old, new)]
+    truncated = len(pairs) > RENAME_PAIRS_MAX
     candidates = []
-    for old in removed:
-        for new in added:
-            distance = _distance(old, new, t)
-            if distance is not None and distance <= t.rename_max_distance:
-                candidates.append((distance, old, new))
+    for old, new in pairs[:RENAME_PAIRS_MAX]:
+        distance = _distance(old, new, t)
+        numeric = _family(old.get("kind")) == "numeric"
+        bound = _rename_bound(old, new, t) if numeric else t.rename_max_distance
+        if distance is not None and distance <= bound:
+            candidates.append((distance, old, new))
     renamed, used = [], set()
     for distance, old, new in sorted(candidates, key=lambda c: c[0]):
         if old["name"] in used or new["name"] in used:
             continue
+        rivals = [
+            d for d, o, n in candidates if (o is old) != (n is new) and (o is old or n is new)
+        ]
+        if rivals and min(rivals) < 2 * distance:
+            continue  # another column fits about as well: too ambiguous to call a rename
         used |= {old["name"], new["name"]}
         measure = "ks" if _family(old.get("kind")) == "numeric" else "js_distance"
-        renamed.append(
-            {
-                "from": old["name"],
-                "to": new["name"],
-                "evidence": {"kind": new.get("kind"), measure: distance},
-            }
-        )
+        evidence = {"kind": new.get("kind"), measure: distance}
+        if truncated:
+            evidence["search_cut_at_pairs"] = RENAME_PAIRS_MAX
+        renamed.append({"from": old["name"], "to": new["name"], "evidence": evidence})
     return renamed
 
 

@@ -166,3 +166,27 @@ def test_exact_ks_between_small_files_profiled_by_the_engine(tmp_path) -> None:
     assert column["ks_exact"] is True
     assert column["ks"] == pytest.approx(reference.statistic, abs=1e-12)
     assert column["ks_p_value"] == pytest.approx(reference.pvalue, rel=1e-9)
+
+
+def test_a_rename_of_a_small_column_is_found_within_sampling_noise() -> None:
+    rng = _rng()
+    base = profile_of([numeric_column("weight_kg", rng.normal(18, 2, 120).tolist())])
+    target = profile_of([numeric_column("gross_kg", rng.normal(18, 2, 120).tolist())])
+    (rename,) = compare_profiles(base, target, thresholds=T)["schema"]["renamed"]
+    # Two samples of 120 from one distribution may differ by up to 1.358·sqrt(2/120) = 0.175
+    # (Smirnov's 5 % critical value), far above the 0.05 kept for large columns.
+    assert rename["evidence"]["ks"] <= 1.358 * (2 / 120) ** 0.5
+
+
+def test_an_ambiguous_rename_is_not_called() -> None:
+    rng = _rng()
+    base = profile_of([numeric_column("depth_a", rng.normal(0, 1, 3000).tolist())])
+    target = profile_of(
+        [
+            numeric_column("depth_b", rng.normal(0, 1, 3000).tolist()),
+            numeric_column("depth_c", rng.normal(0, 1, 3000).tolist()),
+        ]
+    )
+    schema = compare_profiles(base, target, thresholds=T)["schema"]
+    assert schema["renamed"] == []
+    assert schema["removed"] == ["depth_a"] and schema["added"] == ["depth_b", "depth_c"]
