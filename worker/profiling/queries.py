@@ -210,7 +210,17 @@ def crosstab(
     size_a, size_b = len(sides[0]), len(sides[1])
     table = np.bincount(codes[0] * size_b + codes[1], minlength=size_a * size_b)
     table = table.reshape(size_a, size_b)
-    doc = crosstab_statistics(a, b, sides[0], sides[1], table, sort_labels=False)
+    thresholds = options.thresholds
+    doc = crosstab_statistics(
+        a,
+        b,
+        sides[0],
+        sides[1],
+        table,
+        sort_labels=False,
+        min_expected=thresholds.cochran_min_expected,
+        low_share=thresholds.cochran_low_share,
+    )
     if doc is None:
         doc = {
             "a": a,

@@ -40,10 +40,14 @@ def adjusted_residuals(table: np.ndarray) -> np.ndarray:
     return np.where(variance > 0, residuals, 0.0)
 
 
-def cochran_ok(expected: np.ndarray) -> bool:
-    """Cochran (1954): at least 80 % of expected counts ≥ 5 and none below 1."""
+def cochran_ok(expected: np.ndarray, min_expected: float = 5.0, low_share: float = 0.2) -> bool:
+    """Cochran (1954): no expected count below 1, at most ``low_share`` below ``min_expected``.
+
+    The defaults are Cochran's (at least 5 in 80 % of the cells); the engine passes
+    the flag thresholds' values, so the profile and its flags apply one rule.
+    """
     expected = np.asarray(expected, dtype=np.float64)
-    return bool(expected.min() >= 1.0 and (expected >= 5.0).mean() >= 0.8)
+    return bool(expected.min() >= 1.0 and (expected < min_expected).mean() <= low_share)
 
 
 def crosstab_statistics(
@@ -54,6 +58,8 @@ def crosstab_statistics(
     table: np.ndarray,
     *,
     sort_labels: bool = True,
+    min_expected: float = 5.0,
+    low_share: float = 0.2,
 ) -> dict[str, Any] | None:
     """The crosstab document of a pair, or None when the table is not at least 2×2.
 
@@ -97,5 +103,5 @@ def crosstab_statistics(
         "cramers_v": float(np.sqrt(uncorrected / (n * min_side))),
         "residuals": adjusted_residuals(table).round(4).tolist(),
         "expected": np.asarray(result.expected_freq).round(4).tolist(),
-        "cochran_ok": cochran_ok(result.expected_freq),
+        "cochran_ok": cochran_ok(result.expected_freq, min_expected, low_share),
     }

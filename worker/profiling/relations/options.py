@@ -10,7 +10,12 @@ from pydantic import BaseModel, Field
 
 
 class RelationsOptions(BaseModel):
-    """Bounds and thresholds of pairs, twins, crosstabs, missing-together and duplicate rows."""
+    """Bounds and thresholds of pairs, twins, crosstabs, missing-together and duplicate rows.
+
+    Thresholds that also decide a flag live with the flag thresholds
+    (``ProfileOptions.thresholds``: ``twin_r``, ``cochran_min_expected``,
+    ``cochran_low_share``), so the profile and its flags apply one value.
+    """
 
     rank_sample_rows: int = Field(
         200_000,
@@ -25,13 +30,6 @@ class RelationsOptions(BaseModel):
         ge=2,
         description="A label column with more distinct labels than this is left out of "
         "Cramér's V and eta, which would be meaningless and costly (common practice).",
-    )
-    twin_r: float = Field(
-        0.999,
-        gt=0,
-        le=1,
-        description="|Pearson r| at or above which two numeric columns are reported as twins, "
-        "the same measure twice (common practice).",
     )
     unit_tolerance: float = Field(
         0.005,

@@ -81,7 +81,7 @@ class RelationsState:
 
     def finalize(self, kinds: dict[str, str]) -> dict[str, Any]:
         """The profile's "pairs", "twins", "crosstabs" and "missing_together"."""
-        relations = self.options.relations
+        relations, thresholds = self.options.relations, self.options.thresholds
         numeric = [name for name in self.numeric if kinds.get(name) in NUMERIC_KINDS]
         labels = [
             name
@@ -97,7 +97,7 @@ class RelationsState:
                 continue
             pairs.append({"a": a, "b": b, "method": "pearson", "value": moments.r, "n": moments.n})
             found = twin(
-                a, b, moments, threshold=relations.twin_r, tolerance=relations.unit_tolerance
+                a, b, moments, threshold=thresholds.twin_r, tolerance=relations.unit_tolerance
             )
             if found is not None:
                 twins.append(found)
@@ -119,7 +119,13 @@ class RelationsState:
                 relations.crosstab_max_labels
             ):
                 doc = crosstab_statistics(
-                    a, b, self.codes.index[a].labels, self.codes.index[b].labels, table
+                    a,
+                    b,
+                    self.codes.index[a].labels,
+                    self.codes.index[b].labels,
+                    table,
+                    min_expected=thresholds.cochran_min_expected,
+                    low_share=thresholds.cochran_low_share,
                 )
                 if doc is not None:
                     crosstabs.append(doc)

@@ -59,6 +59,7 @@ def test_cochran_rule() -> None:
     assert not cochran_ok(np.array([[10.0, 10, 10, 10, 0.9]]))  # one cell below 1
     assert cochran_ok(np.array([[10.0, 10, 10, 10, 4]]))  # 80 % at least 5
     assert not cochran_ok(np.array([[10.0, 10, 10, 4, 4]]))  # only 60 %
+    assert cochran_ok(np.array([[10.0, 10, 10, 4, 4]]), low_share=0.4)  # a looser setting
     sparse = np.array([[30, 1], [40, 2]])
     doc = crosstab_statistics("a", "b", ["p", "q"], ["x", "y"], sparse)
     assert doc["cochran_ok"] is bool(cochran_ok(expected_freq(sparse)))  # scipy's expected
