@@ -119,8 +119,24 @@ def typed_numbers(array: pa.Array) -> np.ndarray:
 
 
 def _lengths(array: pa.Array) -> np.ndarray:
-    """Byte length of every value (0 for null), from the offsets without copying text."""
+    """Byte length of every value (0 for null), read from the offsets without copying text."""
+    if pat.is_string(array.type) or pat.is_large_string(array.type):
+        width = np.int32 if pat.is_string(array.type) else np.int64
+        buffer = array.buffers()[1]
+        offsets = np.frombuffer(buffer, dtype=width)[array.offset : array.offset + len(array) + 1]
+        return np.diff(offsets)
     return np.asarray(pc.binary_length(array).fill_null(0).to_numpy(zero_copy_only=False))
+
+
+def null_mask(array: pa.Array) -> np.ndarray:
+    """True where the array is null, unpacked from its validity bitmap."""
+    if array.null_count == 0:
+        return np.zeros(len(array), dtype=bool)
+    validity = array.buffers()[0]
+    if validity is None:  # null type: everything is null
+        return np.ones(len(array), dtype=bool)
+    bits = np.unpackbits(np.frombuffer(validity, dtype=np.uint8), bitorder="little")
+    return ~bits[array.offset : array.offset + len(array)].astype(bool)
 
 
 def _text_missing(
@@ -134,7 +150,7 @@ def _text_missing(
     """
     trimmed = pc.ascii_trim_whitespace(raw)
     raw_lengths, lengths = _lengths(raw), _lengths(trimmed)
-    null_np = to_numpy_bool(pc.is_null(raw)) if raw.null_count else np.zeros(len(raw), bool)
+    null_np = null_mask(raw)
     blank_np = (lengths == 0) & ~null_np
     is_token = pc.is_in(trimmed, value_set=pa.array(tokens, type=trimmed.type))
     token_np = to_numpy_bool(is_token)
@@ -192,11 +208,7 @@ def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColu
     if is_text_type(column.type) and name in plan.numeric and name not in plan.labels:
         numbers = _clean_numbers(column, plan)
         if numbers is not None:
-            mask = (
-                to_numpy_bool(pc.is_null(column))
-                if column.null_count
-                else np.zeros(len(column), bool)
-            )
+            mask = null_mask(column)
             detail = MissingCounts(null=column.null_count, blank=0, tokens={})
             return PreparedColumn(missing=mask, counts=detail, numbers=numbers, text=column)
     if is_text_type(column.type):
@@ -212,7 +224,7 @@ def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColu
             text=cleaned,
             padded=padded,
         )
-    mask = to_numpy_bool(pc.is_null(column)) if column.null_count else np.zeros(len(column), bool)
+    mask = null_mask(column)
     if pat.is_floating(column.type):
         mask = mask | to_numpy_bool(pc.is_nan(column))
     detail = MissingCounts(null=int(mask.sum()), blank=0, tokens={})

@@ -2,6 +2,7 @@
 
 import numpy as np
 import pyarrow as pa
+import pyarrow.compute as pc
 
 from worker.profiling.prepared import BatchPlan, parse_numbers, prepare_batch
 
@@ -50,3 +51,13 @@ def test_typed_columns_skip_text_parsing():
     assert prepared.missing["x"].tolist() == [False, True, True, False]
     assert prepared.numbers["x"][[0, 3]].tolist() == [1.0, 4.0]
     assert prepared.labels["s"].to_pylist() == ["1", "2", "3", "4"]
+
+
+def test_null_mask_and_lengths_of_sliced_arrays():
+    from worker.profiling.prepared import _lengths, null_mask
+
+    # pyarrow's is_null and binary_length as the reference, on a slice with an offset.
+    array = pa.array(["ab", None, "", "xyz", None, "é"] * 3).slice(4, 9)
+    assert null_mask(array).tolist() == array.is_null().to_pylist()
+    expected = [0 if v is None else v for v in pc.binary_length(array).to_pylist()]
+    assert _lengths(array).tolist() == expected

@@ -119,16 +119,19 @@ class MomentsState:
             variance = self.m2 / (n - 1)
             out["variance"] = variance
             out["std"] = math.sqrt(variance)
+        # A spread that underflows (constant or subnormal values) gives 0, as pandas does.
+        skew_denominator = (self.m2 / n) ** 1.5 if self.m2 > 0 else 0.0
+        kurt_denominator = self.m2 * self.m2
         if n >= 3:
-            if self.m2 <= 0:
+            if skew_denominator == 0.0:
                 out["skewness"] = 0.0
             else:
-                g1 = (self.m3 / n) / (self.m2 / n) ** 1.5
+                g1 = (self.m3 / n) / skew_denominator
                 out["skewness"] = math.sqrt(n * (n - 1)) / (n - 2) * g1
         if n >= 4:
-            if self.m2 <= 0:
+            if kurt_denominator == 0.0:
                 out["kurtosis"] = 0.0
             else:
-                g2 = n * self.m4 / (self.m2 * self.m2) - 3.0
+                g2 = n * self.m4 / kurt_denominator - 3.0
                 out["kurtosis"] = ((n + 1) * g2 + 6.0) * (n - 1) / ((n - 2) * (n - 3))
         return out

@@ -183,21 +183,26 @@ class NumericState:
         }
 
     def _histogram(self, iqr: float) -> dict[str, Any]:
+        """Freedman–Diaconis bins (width 2 IQR n^(-1/3)), as numpy's "fd" rule counts them,
+        capped at ``histogram_max_bins``; Sturges' rule when the IQR is zero."""
         cap = self.options.histogram_max_bins
+        n = self.moments.n
         low, high = self.moments.minimum, self.moments.maximum
-        if self.quantiles.exact:
-            values = self.quantiles.sorted_values()
-            edges = np.histogram_bin_edges(values, bins="fd" if iqr > 0 else "sturges")
-            if edges.size - 1 > cap:
-                edges = np.histogram_bin_edges(values, bins=cap)
-            counts, _ = np.histogram(values, bins=edges)
+        width = 2.0 * iqr / n ** (1.0 / 3.0) if iqr > 0 else 0.0
+        span = high - low
+        bins = 1 + math.ceil(math.log2(n)) if n > 1 else 1
+        if width > 0 and math.isfinite(span / width):
+            bins = max(1, math.ceil(span / width))
+        bins = min(bins, cap)
+        if span > 0:
+            edges = np.linspace(low, high, bins + 1)
+            if not np.all(np.diff(edges) > 0):  # a span too small to split
+                edges = np.array([low, high])
         else:
-            n = self.moments.n
-            width = 2.0 * iqr / n ** (1.0 / 3.0) if iqr > 0 else 0.0
-            bins = math.ceil((high - low) / width) if width > 0 else 1 + math.ceil(math.log2(n))
-            edges = np.linspace(low, high, max(1, min(bins, cap)) + 1)
-            if high == low:
-                edges = np.array([low - 0.5, high + 0.5])
+            edges = np.array([low - 0.5, high + 0.5])
+        if self.quantiles.exact:
+            counts, _ = np.histogram(self.quantiles.sorted_values(), bins=edges)
+        else:
             below = self.quantiles.count_below(edges[1:-1], inclusive=False)
             cumulative = np.concatenate([[0], below, [n]])
             counts = np.maximum(np.diff(cumulative), 0)

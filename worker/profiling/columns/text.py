@@ -14,6 +14,7 @@ from typing import Any
 import numpy as np
 import pyarrow as pa
 import pyarrow.compute as pc
+import pyarrow.types as pat
 
 _SHAPES = (
     (r"\p{Lu}+", "A"),
@@ -55,13 +56,23 @@ class TextState:
         present = raw.filter(pa.array(~missing)) if any_missing else raw
         if len(present) == 0:
             return
-        lengths = pc.utf8_length(present)
-        low, high = pc.min_max(lengths).values()
+        byte_lengths = ascii_lengths(present)
+        if byte_lengths is not None:
+            low, high, total = (
+                int(byte_lengths.min()),
+                int(byte_lengths.max()),
+                int(byte_lengths.sum()),
+            )
+        else:
+            char_lengths = pc.utf8_length(present)
+            low, high = (v.as_py() for v in pc.min_max(char_lengths).values())
+            total = int(pc.sum(char_lengths).as_py())
         self.n += len(present)
-        self.total_length += int(pc.sum(lengths).as_py())
-        self.min_length = _fold(min, self.min_length, low.as_py())
-        self.max_length = _fold(max, self.max_length, high.as_py())
+        self.total_length += total
+        self.min_length = _fold(min, self.min_length, low)
+        self.max_length = _fold(max, self.max_length, high)
         if padded is None or padded:
+            lengths = pc.utf8_length(present)
             self.leading += _count_changed(lengths, pc.utf8_ltrim_whitespace(present))
             self.trailing += _count_changed(lengths, pc.utf8_rtrim_whitespace(present))
         room = self.pattern_sample * 10 - self.sampled
@@ -105,6 +116,24 @@ class TextState:
             ],
             "patterns_sampled": self.sampled,
         }
+
+
+def ascii_lengths(array: pa.Array) -> np.ndarray | None:
+    """Lengths of the values from the offsets when the text is all ASCII (one byte per
+    character), else None; much cheaper than counting characters value by value."""
+    if not (pat.is_string(array.type) or pat.is_large_string(array.type)) or array.null_count:
+        return None
+    _validity, offsets_buffer, data = array.buffers()
+    width = np.int32 if pat.is_string(array.type) else np.int64
+    offsets = np.frombuffer(offsets_buffer, dtype=width)[
+        array.offset : array.offset + len(array) + 1
+    ]
+    if data is None:
+        return np.diff(offsets)
+    content = np.frombuffer(data, dtype=np.uint8)[offsets[0] : offsets[-1]]
+    if content.size and int(content.max()) >= 0x80:
+        return None
+    return np.diff(offsets)
 
 
 def _fold(pick: Any, current: int | None, new: int | None) -> int | None:
