@@ -164,9 +164,15 @@ class GroupMoments:
         p = len(values.names)
         for label_name, code in codes.items():
             size = sizes[label_name]
-            rows = np.flatnonzero(code >= 0)
-            onehot = sparse.csr_matrix(
-                (np.ones(len(rows)), (code[rows], rows)), shape=(size, len(code))
+            present = code >= 0
+            # One entry per row with a label: a CSC matrix built as is, with no sorting.
+            onehot = sparse.csc_matrix(
+                (
+                    np.ones(int(present.sum())),
+                    code[present],
+                    np.concatenate([[0], np.cumsum(present)]),
+                ),
+                shape=(size, len(code)),
             )
             sums = np.asarray(onehot @ stacked)
             n, total, squares = sums[:, :p], sums[:, p : 2 * p], sums[:, 2 * p :]

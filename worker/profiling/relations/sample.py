@@ -87,10 +87,10 @@ class RowSample:
         self._buffered += len(keys)
         self._sorted = False
         if self._buffered > 2 * self.k:
-            self._compact()
+            self._compact(in_row_order=False)
 
-    def _compact(self) -> None:
-        if not self._parts or (len(self._parts) == 1 and self._sorted):
+    def _compact(self, *, in_row_order: bool = True) -> None:
+        if not self._parts or (len(self._parts) == 1 and (self._sorted or not in_row_order)):
             return
         keys = np.concatenate([part[0] for part in self._parts])
         rows = np.concatenate([part[1] for part in self._parts])
@@ -99,10 +99,12 @@ class RowSample:
             keep = np.argpartition(keys, self.k - 1)[: self.k]
             keys, rows, values = keys[keep], rows[keep], values[keep]
             self._threshold = keys.max()
-        order = np.argsort(rows, kind="stable")
-        self._parts = [(keys[order], rows[order], values[order])]
+        if in_row_order:
+            order = np.argsort(rows, kind="stable")
+            keys, rows, values = keys[order], rows[order], values[order]
+        self._parts = [(keys, rows, values)]
         self._buffered = len(keys)
-        self._sorted = True
+        self._sorted = in_row_order
 
     @property
     def rows(self) -> np.ndarray:
