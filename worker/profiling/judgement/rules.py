@@ -8,6 +8,7 @@ A rules document is a small JSON or YAML mapping, for example::
       crate_id:  {kind: identifier, unique: true}
       weight_kg: {kind: numeric, min: 0, max: 40, max_missing_share: 0.02, missing_values: [-999]}
       grade:     {kind: categorical, allowed_labels: [A, B, C]}
+      read_at:   {kind: datetime, min: 2031-03-01, max: 2031-03-31}
       remarks:   {required: false}
     thresholds: {missing_share_warning: 0.1}
 
@@ -21,6 +22,7 @@ from __future__ import annotations
 
 import json
 import math
+from datetime import date, datetime, time
 from typing import Any, Literal
 
 import numpy as np
@@ -50,8 +52,12 @@ class ColumnRule(BaseModel):
 
     kind: Kind | None = Field(None, description="Expected column kind.")
     required: bool = Field(True, description="The column must be present.")
-    min: float | None = Field(None, description="Smallest allowed value (numeric columns).")
-    max: float | None = Field(None, description="Largest allowed value (numeric columns).")
+    min: float | date | datetime | None = Field(
+        None, description="Smallest allowed value: a number, or a date for datetime columns."
+    )
+    max: float | date | datetime | None = Field(
+        None, description="Largest allowed value: a number, or a date for datetime columns."
+    )
     allowed_labels: list[str] | None = Field(None, description="The only labels allowed.")
     max_missing_share: float | None = Field(
         None, ge=0, le=1, description="Largest share of rows allowed to be missing."
@@ -66,9 +72,23 @@ class ColumnRule(BaseModel):
 
     @model_validator(mode="after")
     def _range_in_order(self) -> ColumnRule:
-        if self.min is not None and self.max is not None and self.min > self.max:
+        if self.min is None or self.max is None:
+            return self
+        if isinstance(self.min, date) != isinstance(self.max, date):
+            raise ValueError("min and max must both be numbers or both be dates")
+        low, high = _as_moment(self.min, end=False), _as_moment(self.max, end=True)
+        if low > high:
             raise ValueError(f"min ({self.min}) is larger than max ({self.max})")
         return self
+
+
+def _as_moment(value: Any, *, end: bool) -> Any:
+    """A date as the first (or, with ``end``, the last) moment of its day; others unchanged."""
+    if isinstance(value, datetime):
+        return value.replace(tzinfo=None)
+    if isinstance(value, date):
+        return datetime.combine(value, time.max if end else time.min)
+    return value
 
 
 class RowRule(BaseModel):
@@ -107,16 +127,23 @@ class SupplierRules(BaseModel):
         return value
 
 
+_UNION_MEMBERS = {"float", "date", "datetime"}
+"""Tags pydantic adds to the location of each failed member of ``float | date | datetime``."""
+
+
 def _problems(error: ValidationError) -> list[dict[str, str]]:
-    problems = []
+    """One problem per mistake: its dotted path and a plain message."""
+    problems: dict[str, str] = {}
     for item in error.errors():
         location = [str(part) for part in item["loc"]]
-        # The thresholds validator reports FlagThresholds' own locations after ours.
         message = item["msg"].removeprefix("Value error, ")
         if item["type"] == "extra_forbidden":
             message = "unknown setting"
-        problems.append({"path": ".".join(location), "message": message})
-    return problems
+        if location and location[-1] in _UNION_MEMBERS:
+            location = location[:-1]
+            message = "should be a number, or a date such as 2031-03-01"
+        problems.setdefault(".".join(location), message)
+    return [{"path": path, "message": message} for path, message in problems.items()]
 
 
 def parse_rules(document: str | bytes | dict[str, Any]) -> SupplierRules:
@@ -272,6 +299,9 @@ def _check_column(name: str, rule: ColumnRule, column: dict[str, Any] | None, ro
     for check, bound in (("min", rule.min), ("max", rule.max)):
         if bound is None:
             continue
+        if isinstance(bound, date):
+            yield _date_bound(base, name, check, bound, column, rule)
+            continue
         observed = numeric.get(check)
         if observed is None:
             yield _result(
@@ -384,6 +414,37 @@ def _check_column(name: str, rule: ColumnRule, column: dict[str, Any] | None, ro
             cells=repeats,
             exact=column.get("distinct_exact", True),
         )
+
+
+def _date_bound(
+    base: str, name: str, check: str, bound: date, column: dict[str, Any], rule: ColumnRule
+) -> dict[str, Any]:
+    """A min or max date rule, checked on the column's stored earliest or latest moment."""
+    observed = ((column.get("datetime") or {}) if column.get("kind") == "datetime" else {}).get(
+        check
+    )
+    shown = bound.isoformat()
+    if observed is None:
+        return _result(
+            f"{base}.{check}", name, check, False, rule.severity,
+            f"'{name}' has no dates to compare with its {check} of {shown}.",
+            expected=shown, observed=None,
+        )  # fmt: skip
+    moment = datetime.fromisoformat(str(observed)).replace(tzinfo=None)
+    below = check == "min"
+    limit = _as_moment(bound, end=not below)
+    passed = moment >= limit if below else moment <= limit
+    side = "before" if below else "after"
+    message = (
+        f"'{name}' stays within its {check} of {shown}."
+        if passed
+        else f"'{name}' goes {side} its {check} of {shown}: "
+        f"{'earliest' if below else 'latest'} {observed}."
+    )
+    return _result(
+        f"{base}.{check}", name, check, passed, rule.severity, message,
+        expected=shown, observed=observed,
+    )  # fmt: skip
 
 
 def _texts(rule: ColumnRule) -> set[str]:

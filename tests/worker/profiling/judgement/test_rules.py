@@ -66,7 +66,7 @@ thresholds: {psi_warnin: 0.2}
     problems = {p["path"]: p["message"] for p in caught.value.problems}
     assert "rows" in problems and "larger than max" in problems["rows"]
     assert problems["columns.weight_kg.kind"].startswith("Input should be")
-    assert "valid number" in problems["columns.weight_kg.min"]
+    assert problems["columns.weight_kg.min"] == "should be a number, or a date such as 2031-03-01"
     assert problems["columns.weight_kg.colour"] == "unknown setting"
     assert "less than or equal to 1" in problems["columns.grade.max_missing_share"]
     assert any(path.startswith("thresholds") for path in problems)
@@ -161,3 +161,24 @@ def test_threshold_overrides() -> None:
     assert overridden.missing_share_warning == 0.1
     assert overridden.psi_warning == base.psi_warning
     assert thresholds_for(None, base) is base
+
+
+def test_date_ranges_for_datetime_columns() -> None:
+    column = {
+        "name": "read_at",
+        "kind": "datetime",
+        "count": 10,
+        "missing": 0,
+        "datetime": {"min": "2031-02-27T23:50:00", "max": "2031-03-31T23:50:00"},
+    }
+    profile = profile_of([column])
+    rules = "columns: {read_at: {kind: datetime, min: 2031-03-01, max: 2031-03-31}}"
+    results = by_rule(check_rules(profile, rules))
+    early = results["columns.read_at.min"]
+    assert not early["passed"]
+    assert early["message"] == (
+        "'read_at' goes before its min of 2031-03-01: earliest 2031-02-27T23:50:00."
+    )
+    assert results["columns.read_at.max"]["passed"]  # the max date covers its whole day
+    with pytest.raises(RulesError, match="both be numbers or both be dates"):
+        parse_rules({"columns": {"read_at": {"min": 0, "max": "2031-03-31"}}})
