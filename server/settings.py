@@ -43,9 +43,6 @@ class SecuritySettings(BaseModel):
         description="Stored files older than this are purged (profiles are kept); "
         "empty keeps files until an admin deletes them.",
     )
-    demo_accounts: bool = Field(
-        False, description="Create one demo user per role with a printed password (demo only)."
-    )
 
 
 class Settings(BaseSettings):
