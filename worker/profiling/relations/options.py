@@ -25,6 +25,12 @@ class RelationsOptions(BaseModel):
         "the sample size (common practice: the standard error of rho on 200,000 rows is "
         "about 0.002, and ranking costs grow with the square of the numeric columns).",
     )
+    pair_columns: int = Field(
+        60,
+        ge=2,
+        description="At most this many numeric and this many label columns, the first ones, "
+        "enter the pairs, whose number grows as the square of the columns (common practice).",
+    )
     label_bound: int = Field(
         200,
         ge=2,

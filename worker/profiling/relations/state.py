@@ -39,8 +39,8 @@ class RelationsState:
     def __init__(self, numeric: list[str], labels: list[str], options: ProfileOptions) -> None:
         self.options = options
         relations = options.relations
-        self.numeric = list(numeric)
-        self.labels = list(labels)
+        self.numeric = list(numeric)[: relations.pair_columns]
+        self.labels = list(labels)[: relations.pair_columns]
         self.comoments = CoMoments(self.numeric)
         self.sample = RowSample(self.numeric, relations.rank_sample_rows)
         self.codes = LabelCodes(self.labels, relations.label_bound)
@@ -157,13 +157,25 @@ class RelationsState:
         values = {name: sample.column(name) for name in numeric}
         present = {name: ~np.isnan(column) for name, column in values.items()}
         order = {name: np.argsort(column, kind="stable") for name, column in values.items()}
+        whole = [name for name in numeric if present[name].all()]
+        # Columns without a missing value in the sample: one rank matrix, one correlation.
+        matrix: dict[tuple[str, str], float] = {}
+        if len(whole) >= 2 and len(values[whole[0]]) > 2:
+            ranks = np.column_stack([_ranks_within(values[n], order[n], present[n]) for n in whole])
+            with np.errstate(invalid="ignore", divide="ignore"):
+                rho_matrix = np.corrcoef(ranks, rowvar=False)
+            for i, a in enumerate(whole):
+                for j in range(i + 1, len(whole)):
+                    matrix[(a, whole[j])] = float(np.clip(rho_matrix[i, j], -1.0, 1.0))
         out = []
         for i, a in enumerate(numeric):
             for b in numeric[i + 1 :]:
                 both = present[a] & present[b]
                 n = int(both.sum())
                 rho = None
-                if n > 2:
+                if (a, b) in matrix:
+                    rho = None if np.isnan(matrix[(a, b)]) else matrix[(a, b)]
+                elif n > 2:
                     ra = _ranks_within(values[a], order[a], both)
                     rb = _ranks_within(values[b], order[b], both)
                     rho = _pearson(ra, rb)

@@ -149,3 +149,25 @@ def test_ranks_within_match_scipy_rankdata() -> None:
     keep = ~np.isnan(values) & (rng.random(5000) < 0.7)
     ranks = _ranks_within(values, np.argsort(values, kind="stable"), keep)
     assert np.array_equal(ranks, rankdata(values[keep]))  # reference: scipy, average ties
+
+
+def test_spearman_of_complete_and_incomplete_columns_match_scipy() -> None:
+    rng = np.random.default_rng(21)
+    frame = pd.DataFrame(rng.normal(size=(800, 4)).round(1), columns=["p", "q", "r", "s"])
+    frame["q"] += frame["p"]
+    frame.loc[rng.random(800) < 0.2, "s"] = np.nan
+    names = list(frame.columns)
+    state = RelationsState(names, [], ProfileOptions())
+    for batch in prepared_batches(frame, names, [], batch_rows=300):
+        state.update(batch)
+    result = by_method(state.finalize(dict.fromkeys(names, "numeric")), "spearman")
+    reference = frame.corr(method="spearman")  # pandas: pairwise-complete rows, average ties
+    for (a, b), pair in result.items():
+        assert pair["value"] == pytest.approx(reference.loc[a, b], rel=1e-12)
+    assert len(result) == 6
+
+
+def test_pairs_are_bounded_by_the_column_limit() -> None:
+    options = ProfileOptions(relations=RelationsOptions(pair_columns=2))
+    state = RelationsState(NUMERIC, LABELS, options)
+    assert state.numeric == NUMERIC[:2] and state.labels == LABELS[:2]
