@@ -76,6 +76,17 @@ def label_counts(column: dict[str, Any]) -> dict[str, int]:
     return counts
 
 
+def usable_numeric(column: dict[str, Any]) -> dict[str, Any] | None:
+    """The column's numeric section when it holds 101 finite percentiles, else None."""
+    numeric = column.get("numeric") or {}
+    percentiles = numeric.get("percentiles")
+    if not isinstance(percentiles, list) or len(percentiles) != 101:
+        return None
+    if not all(isinstance(v, int | float) and np.isfinite(v) for v in percentiles):
+        return None
+    return numeric
+
+
 def _exact_values(numeric: dict[str, Any], count: int) -> Any:
     """A column's sorted values: stored, or read back from the percentiles of a small sample."""
     if numeric.get("values"):
@@ -88,9 +99,9 @@ def _exact_values(numeric: dict[str, Any], count: int) -> Any:
 def _numeric_drift(
     base: dict[str, Any], target: dict[str, Any], thresholds: FlagThresholds
 ) -> dict[str, Any]:
-    b, t = base.get("numeric") or {}, target.get("numeric") or {}
+    b, t = usable_numeric(base), usable_numeric(target)
     result: dict[str, Any] = {"psi": None, "ks": None, "ks_p_value": None, "ks_exact": False}
-    if b.get("percentiles") and t.get("percentiles"):
+    if b and t:
         value, edges, expected, actual = decile_psi(
             b["percentiles"], t["percentiles"], floor=thresholds.psi_floor
         )
@@ -106,6 +117,7 @@ def _numeric_drift(
         else:
             result["ks"] = ks_from_percentiles(b["percentiles"], t["percentiles"])
             result["ks_p_value"] = ks_p_value(result["ks"], n_b, n_t)
+    b, t = base.get("numeric") or {}, target.get("numeric") or {}
     mean_b, mean_t, std_b = b.get("mean"), t.get("mean"), b.get("std")
     if mean_b is not None and mean_t is not None and std_b:
         result["mean_shift_sd"] = (float(mean_t) - float(mean_b)) / float(std_b)
@@ -175,10 +187,11 @@ def _may_match(base: dict[str, Any], target: dict[str, Any]) -> bool:
         b = {str(i["value"]) for i in (base.get("labels") or {}).get("top") or []}
         g = {str(i["value"]) for i in (target.get("labels") or {}).get("top") or []}
         return bool(b & g)
-    b, g = base.get("numeric") or {}, target.get("numeric") or {}
-    if not (b.get("percentiles") and g.get("percentiles")):
+    b, g = usable_numeric(base), usable_numeric(target)
+    if not (b and g):
         return False
-    return b["q1"] <= g["q3"] and g["q1"] <= b["q3"]
+    bq, gq = b["percentiles"], g["percentiles"]
+    return bq[25] <= gq[75] and gq[25] <= bq[75]
 
 
 def _distance(base: dict[str, Any], target: dict[str, Any], t: FlagThresholds) -> float | None:

@@ -60,7 +60,21 @@ def _column_rows(profile: dict[str, Any], column: dict[str, Any]) -> int:
 
 @_registers("completeness.missing-share")
 def missing_share(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
-    """Columns with a large share of missing cells (null, blank or a missing token)."""
+    """Columns with a large share of missing cells (null, blank or a missing token).
+
+    A file with columns but no rows at all is one critical flag for the file.
+    """
+    dataset = profile.get("dataset") or {}
+    if dataset.get("rows") == 0 and profile.get("columns"):
+        return [
+            make_flag(
+                "completeness.missing-share",
+                "critical",
+                [],
+                "The file has a header but no rows: every column is empty.",
+                {"rows": 0, "columns": len(profile["columns"])},
+            )
+        ]
     flags = []
     for column in _columns(profile):
         rows = _column_rows(profile, column)

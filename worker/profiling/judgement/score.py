@@ -4,7 +4,8 @@ Every dimension is 100 × (1 - bad / checked), rounded down, so 100 means
 nothing was found and any finding costs at least one point:
 
 - completeness: bad = missing cells + cells holding a suspected stand-in for
-  'unknown' (such as -999); checked = rows × columns.
+  'unknown' (such as -999); checked = rows × columns (0 for a file with a
+  header and no rows).
 - validity: bad = values that do not fit their column's kind + values beyond
   Tukey's outer fences (stand-ins left out: completeness counts them) + values
   a supplier rule rejects; checked = filled cells.
@@ -69,6 +70,8 @@ def completeness(profile: dict[str, Any]) -> tuple[int, str]:
     rows = int(profile["dataset"].get("rows") or 0)
     columns = profile.get("columns") or []
     cells = rows * len(columns)
+    if rows == 0 and columns:
+        return 0, "completeness 0: the file has no rows"
     per_column = {}
     for column in columns:
         stand_ins = sum(int(s.get("count") or 0) for s in column.get("suspected_sentinels") or [])

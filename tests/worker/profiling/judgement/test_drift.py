@@ -190,3 +190,12 @@ def test_an_ambiguous_rename_is_not_called() -> None:
     schema = compare_profiles(base, target, thresholds=T)["schema"]
     assert schema["renamed"] == []
     assert schema["removed"] == ["depth_a"] and schema["added"] == ["depth_b", "depth_c"]
+
+
+def test_columns_without_usable_percentiles_are_compared_by_what_they_have() -> None:
+    base = profile_of([numeric_column("x", [1.0, 2.0, 3.0, 4.0, 5.0])])
+    target = profile_of([numeric_column("x", [2.0, 3.0, 4.0, 5.0, 6.0])])
+    target["columns"][0]["numeric"]["percentiles"] = [None] * 101  # NaN stored as null
+    column = _column(compare_profiles(base, target, thresholds=T), "x")
+    assert column["psi"] is None and column["ks"] is None
+    assert column["mean_shift_sd"] == pytest.approx(1 / np.std([1, 2, 3, 4, 5], ddof=1))

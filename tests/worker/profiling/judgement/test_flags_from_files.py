@@ -204,3 +204,13 @@ def test_stability_flags_between_real_deliveries(tmp_path: Path) -> None:
         "stability.distribution-shift",
         "stability.volume-change",
     }
+
+
+def test_a_file_with_a_header_and_no_rows(tmp_path: Path) -> None:
+    path = tmp_path / "empty.csv"
+    path.write_text("crate_id,weight_kg\n", encoding="utf-8")
+    profile = profile_file(path)
+    (flag,) = profile["flags"]
+    assert (flag["code"], flag["severity"]) == ("completeness.missing-share", "critical")
+    assert profile["score"]["dimensions"]["completeness"] == 0
+    assert profile["verdict"] == "reject"
