@@ -40,7 +40,7 @@ from worker.profiling.judgement.flags import (
     variant_cells,
 )
 from worker.profiling.judgement.thresholds import FlagThresholds
-from worker.profiling.judgement.wording import number, percent
+from worker.profiling.judgement.wording import number, percent, plural
 
 DIMENSIONS = (
     "completeness",
@@ -284,13 +284,14 @@ def suggest_verdict(
     warnings = [f for f in flags if f["severity"] == "warning"]
     broken = [r for r in rule_results or [] if not r["passed"]]
     if critical:
-        return "reject", [f"{len(critical)} critical flags: " + critical[0]["message"]]
+        first = critical[0]["message"]
+        return "reject", [f"{plural(len(critical), 'critical flag')}, first: {first}"]
     reasons = []
     if warnings:
         codes = sorted({f["code"] for f in warnings})
-        reasons.append(f"{len(warnings)} warnings ({', '.join(codes)})")
+        reasons.append(f"{plural(len(warnings), 'warning')} ({', '.join(codes)})")
     if broken:
-        reasons.append(f"{len(broken)} rules broken")
+        reasons.append(f"{plural(len(broken), 'rule')} broken")
     if not rule_results:
         reasons.append("no supplier rules were checked; a person must judge the file")
     if reasons:

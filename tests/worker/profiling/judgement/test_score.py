@@ -120,4 +120,4 @@ def test_verdict_from_rules_and_flags() -> None:
     assert suggest_verdict([_flag("warning")], kept)[0] == "review"
     assert suggest_verdict([], broken)[0] == "review"
     verdict, reasons = suggest_verdict([_flag("critical"), _flag("warning")], kept)
-    assert verdict == "reject" and reasons[0].startswith("1 critical flags")
+    assert verdict == "reject" and reasons[0].startswith("1 critical flag, first: m")
