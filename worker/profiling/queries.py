@@ -23,7 +23,7 @@ import pyarrow.compute as pc
 import pyarrow.parquet as pq
 
 from worker.profiling.options import ProfileOptions
-from worker.profiling.prepared import BatchPlan, prepare_batch
+from worker.profiling.prepared import BatchPlan, prepare_column
 from worker.profiling.relations.crosstab import crosstab_statistics
 
 Where = Mapping[str, str | None] | None
@@ -49,11 +49,13 @@ def _check_columns(file: pq.ParquetFile, names: list[str]) -> None:
 
 
 def _clean_labels(raw: pa.Array, options: ProfileOptions) -> pa.Array:
-    """Labels as the engine prepares them (``prepare_batch``): trimmed, null where missing."""
+    """Labels as the engine prepares them (``prepare_column``): trimmed, null where missing."""
     plan = BatchPlan(
         numeric=frozenset(), labels=frozenset(["v"]), missing_tokens=tuple(options.missing_tokens)
     )
-    return prepare_batch(pa.record_batch({"v": raw}), 0, plan).labels["v"]
+    labels = prepare_column("v", raw, plan).labels
+    assert labels is not None
+    return labels
 
 
 class LabelColumn:
