@@ -36,6 +36,7 @@ def planted(tmp_path):
                 "remark": ["NA", "", "  ", "n/a", "ok"][i % 5],
                 "sealed": ["yes", "no"][i % 2],
                 "blank": "",
+                "departed": "2025-04-01" if i != 7 else "soon",
             }
         )
     path = tmp_path / "planted.csv"
@@ -73,6 +74,9 @@ def test_planted_faults_are_found(planted):
     assert remark["missing"] == 32
     assert remark["missing_detail"]["tokens"] == {"NA": 8, "n/a": 8}
     assert remark["missing_detail"]["blank"] + remark["missing_detail"]["null"] == 16
+    departed = columns["departed"]
+    assert departed["kind"] == "datetime"
+    assert departed["kind_evidence"]["mixed_kinds"]["examples"] == ["soon"]
     assert columns["sealed"]["kind"] == "boolean"
     assert columns["blank"]["kind"] == "empty"
     assert columns["parcel"]["kind"] == "identifier"

@@ -152,7 +152,7 @@ class ColumnState:
             self.kinds,
             candidates=self.candidates,
             dates_parsed=dates["parsed"] if dates else 0,
-            date_examples=[],
+            date_examples=(dates or {}).get("unparsed_examples", []),
             labels=self.labels.folded_values() if self.labels is not None else None,
             distinct=distinct["distinct"],
             mean_length=text["mean_length"] if text else None,

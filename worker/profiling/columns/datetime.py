@@ -139,6 +139,7 @@ class DatetimeState:
         self.formats = list(formats)
         self.now = now
         self.states = {fmt: _FormatState(exact_bound, kll_k) for fmt in self.formats}
+        self.examples: dict[str, list[str]] = {fmt: [] for fmt in self.formats}
 
     def update(self, values: pa.Array) -> None:
         """Add a batch: trimmed text (null where missing), or typed timestamps/dates."""
@@ -147,11 +148,23 @@ class DatetimeState:
                 parsed = pc.cast(pc.cast(values, pa.timestamp("s")), pa.timestamp("s"))
             else:
                 parsed = parse_dates(values, fmt)
+                self._keep_examples(fmt, values, parsed)
             state.update(parsed, self.now)
+
+    def _keep_examples(self, fmt: str, values: pa.Array, parsed: pa.Array) -> None:
+        """Keep a few present values the format does not read (mixed-kinds evidence)."""
+        kept = self.examples[fmt]
+        if len(kept) >= 5 or parsed.null_count == values.null_count:
+            return
+        odd = pc.filter(values, pc.and_(pc.is_null(parsed), pc.is_valid(values)))
+        for value in pc.unique(odd.slice(0, 50)).to_pylist():
+            if value not in kept and len(kept) < 5:
+                kept.append(value)
 
     def merge(self, other: DatetimeState) -> DatetimeState:
         out = DatetimeState(self.formats, now=self.now)
         for fmt in self.formats:
+            out.examples[fmt] = (self.examples[fmt] + other.examples.get(fmt, []))[:5]
             mine = self.states[fmt]
             out.states[fmt] = mine.merge(other.states[fmt]) if fmt in other.states else mine
         return out
@@ -182,6 +195,7 @@ class DatetimeState:
             "ambiguous": ambiguous,
             "alternative_format": partner if ambiguous else None,
             "parsed": parsed,
+            "unparsed_examples": self.examples.get(fmt, []),
             "min": _iso(low),
             "max": _iso(high),
             "span_days": (high - low) / 86400.0,

@@ -5,7 +5,9 @@ The candidates are a configurable list of such codes plus zero. A code is
 suspected when it stands apart from the bulk of the other values: outside
 their far-out Tukey fences (3 × IQR; J. W. Tukey, Exploratory Data Analysis,
 1977), beyond the range of the other values by at least their IQR, or negative
-where every other value is at least zero. Zero is suspected
+where every other value is at least zero; and it is a spike: its share of the
+column exceeds the share of the other values within one bin width of it, so a
+long tail's ordinary 999.00 is not taken for a code. Zero is suspected
 when it is a spike: at least ``zero_share`` of the values are zero while
 almost no other values lie within one Freedman–Diaconis bin width of zero
 (D. Freedman and P. Diaconis, Z. Wahrscheinlichkeitstheorie 57, 1981). The
@@ -67,20 +69,22 @@ def suspected_sentinels(
     lowest, highest = float(others.min()), float(others.max())
     all_non_negative = lowest >= 0
     integers = bool(np.array_equal(others, np.trunc(others)))
+    width = 2.0 * iqr / others.size ** (1.0 / 3.0) if iqr > 0 else 0.0
+    if integers:
+        width = max(width, 1.0)  # whole numbers cannot come nearer than 1
     for code in codes.tolist():
         count = present[code]
+        share = count / total
+        # The share of other values within one bin width of the code: a code is a
+        # spike when it alone outweighs its whole neighbourhood.
+        near = np.count_nonzero(np.abs(others - code) <= width) / others.size
+        spike = share > near
         if code == 0.0:
-            width = 2.0 * iqr / others.size ** (1.0 / 3.0) if iqr > 0 else 0.0
-            if integers:
-                width = max(width, 1.0)  # whole numbers cannot come nearer than 1
-            near = np.count_nonzero(np.abs(others) <= width) / others.size
-            share = count / total
-            apart = code < low or code > high or near < 0.1 * share
-            if share >= zero_share and apart:
+            if share >= zero_share and near < 0.1 * share:
                 found.append({"value": 0.0, "count": count})
             continue
         gap = max(lowest - code, code - highest)
-        beyond_range = gap >= max(iqr, 1e-12)
-        if code < low or code > high or beyond_range or (code < 0 and all_non_negative):
+        apart = code < low or code > high or gap >= max(iqr, 1e-12)
+        if spike and (apart or (code < 0 and all_non_negative)):
             found.append({"value": code, "count": count})
     return found

@@ -33,3 +33,11 @@ def test_spike_of_zeros_apart_from_the_bulk():
 def test_zeros_of_a_count_column_are_not_a_spike():
     values = np.random.default_rng(12).poisson(1.5, size=1_000).astype(float)
     assert _sentinels(values) == []
+
+
+def test_an_ordinary_value_in_a_long_tail_is_not_a_code():
+    # Truth by construction: a lognormal tail passes through 999 with no spike there.
+    rng = np.random.default_rng(13)
+    values = np.round(rng.lognormal(5.0, 1.0, 50_000), 2)
+    values[:2] = 999.0
+    assert _sentinels(values) == []
