@@ -18,11 +18,15 @@ analysis of a near-optimal cardinality estimation algorithm", AofA.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import polars as pl
 import pyarrow as pa
+
+if TYPE_CHECKING:
+    from worker.profiling.options import ProfileOptions
+    from worker.profiling.prepared import PreparedBatch
 
 HASH_SEED = 0x7D3A
 
@@ -73,7 +77,7 @@ class HyperLogLog:
 class DuplicateState:
     """Mergeable state for duplicate rows over ``columns`` (the raw batch's columns)."""
 
-    def __init__(self, columns: list[str], options: Any) -> None:
+    def __init__(self, columns: list[str], options: ProfileOptions) -> None:
         self.columns = list(columns)
         self.options = options
         relations = options.relations
@@ -85,8 +89,8 @@ class DuplicateState:
         self._sketch: HyperLogLog | None = None
         self._prefix: dict[str, Any] | None = None  # exact findings before the bound was passed
 
-    def update(self, batch: Any) -> None:
-        """Add one PreparedBatch (only its raw cells and offset are read)."""
+    def update(self, batch: PreparedBatch) -> None:
+        """Add one prepared batch (only its raw cells and offset are read)."""
         self._add(batch.offset, row_hashes(batch.raw))
 
     def _add(self, offset: int, hashes: np.ndarray) -> None:

@@ -60,7 +60,9 @@ def unit_hint(
     return None
 
 
-def twin(a: str, b: str, moments: PairMoments, *, threshold: float, tolerance: float):
+def twin(
+    a: str, b: str, moments: PairMoments, *, threshold: float, tolerance: float
+) -> dict[str, Any] | None:
     """The twin document of a pair, or None when |r| is below ``threshold``."""
     r = moments.r
     if r is None or abs(r) < threshold:
