@@ -20,7 +20,13 @@ from sqlalchemy.orm import Session
 
 from server.settings import Settings, get_settings
 from server.store import Intake, Profile, session_scope
-from server.store.reviews import Judgement, SupplierRules, last_accepted_intake, latest_rules
+from server.store.reviews import (
+    Judgement,
+    SupplierRules,
+    last_accepted_intake,
+    latest_decisions,
+    latest_rules,
+)
 from worker.profiling.judgement import FlagThresholds, assess, compare_profiles, parse_rules
 from worker.profiling.judgement import SupplierRules as ParsedRules
 from worker.profiling.judgement.rules import RulesError, thresholds_for
@@ -132,3 +138,38 @@ def judge_intake(intake_id: int, settings: Settings | None = None) -> None:
         intake = session.get(Intake, intake_id)
         if intake is not None:
             judge(session, intake, settings)
+
+
+FOLLOWERS_MAX = 20
+"""Most later intakes judged again when a decision changes their default baseline."""
+
+
+def rejudge_followers(session: Session, decided: Intake, settings: Settings) -> list[int]:
+    """Judge again the supplier's later, undecided intakes whose baseline is the default.
+
+    A decision on ``decided`` may make it (or stop it being) the last accepted
+    intake, which is the default baseline of the deliveries after it. Returns
+    the ids judged again (at most FOLLOWERS_MAX, the oldest first).
+    """
+    later = session.scalars(
+        select(Intake)
+        .where(
+            Intake.supplier_id == decided.supplier_id,
+            Intake.id != decided.id,
+            Intake.created_at >= decided.created_at,
+        )
+        .order_by(Intake.created_at, Intake.id)
+    ).all()
+    decisions = latest_decisions(session, [i.id for i in later])
+    judged = []
+    for intake in later:
+        if len(judged) >= FOLLOWERS_MAX:
+            break
+        if intake.id in decisions:
+            continue
+        judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
+        if judgement is None or judgement.baseline_chosen:
+            continue
+        judge(session, intake, settings)
+        judged.append(intake.id)
+    return judged

@@ -8,10 +8,11 @@ from fastapi import APIRouter, status
 from pydantic import BaseModel, Field
 from sqlalchemy import select
 
-from server.api.deps import CurrentUser, IntakeDep, SessionDep
+from server.api.deps import CurrentUser, IntakeDep, SessionDep, SettingsDep
 from server.api.errors import ApiError
 from server.store import IntakeStatus
 from server.store.reviews import Decision, Judgement, Verdict
+from worker.jobs.judging import rejudge_followers
 
 router = APIRouter(prefix="/intakes/{intake_id}/decisions", tags=["decisions"])
 
@@ -69,9 +70,17 @@ def list_decisions(intake: IntakeDep, session: SessionDep, user: CurrentUser) ->
 
 @router.post("", response_model=DecisionOut, status_code=status.HTTP_201_CREATED)
 def decide(
-    body: DecisionIn, intake: IntakeDep, session: SessionDep, user: CurrentUser
+    body: DecisionIn,
+    intake: IntakeDep,
+    session: SessionDep,
+    settings: SettingsDep,
+    user: CurrentUser,
 ) -> DecisionOut:
-    """Record a decision; earlier ones stay as the intake's history."""
+    """Record a decision; earlier ones stay as the intake's history.
+
+    Later undecided deliveries of the supplier that compare with the default
+    baseline are judged again, since this decision may change that baseline.
+    """
     if intake.status != IntakeStatus.ready:
         raise ApiError(
             409,
@@ -96,5 +105,8 @@ def decide(
         score=judgement.overall_score if judgement else None,
     )
     session.add(decision)
+    session.flush()
+    # The decision may change the default baseline of the supplier's later deliveries.
+    rejudge_followers(session, intake, settings)
     session.commit()
     return _out(decision)

@@ -81,3 +81,20 @@ def test_choosing_a_baseline(api) -> None:
 def test_unknown_intake_is_404(api) -> None:
     answer = api.get("/api/v1/intakes/424242/judgement")
     assert answer.status_code == 404 and answer.json()["code"] == "not_found"
+
+
+def test_accepting_an_earlier_delivery_judges_later_ones_again(api) -> None:
+    supplier = new_supplier(api)
+    first = deliver(api, supplier["id"], crates_csv(7), "week-07.csv")
+    second = deliver(api, supplier["id"], crates_csv(8, shift=4.0), "week-08.csv")
+    url = f"/api/v1/intakes/{second['id']}/judgement"
+    assert api.get(url).json()["baseline_intake_id"] is None  # nothing accepted yet
+    api.post(f"/api/v1/intakes/{first['id']}/decisions", json={"verdict": "accepted"})
+    judgement = api.get(url).json()
+    assert judgement["baseline_intake_id"] == first["id"]
+    assert "stability.distribution-shift" in {f["code"] for f in judgement["flags"]}
+    api.post(
+        f"/api/v1/intakes/{first['id']}/decisions",
+        json={"verdict": "rejected", "reason": "the scale was miscalibrated"},
+    )
+    assert api.get(url).json()["baseline_intake_id"] is None
