@@ -184,3 +184,15 @@ def test_questions_over_the_copy_the_engine_wrote(tmp_path: Path) -> None:
     asked = crosstab(copy_path, stored["a"], stored["b"])
     assert asked["counts"] == stored["counts"]
     assert asked["chi2"] == pytest.approx(stored["chi2"], rel=1e-12)
+
+
+def test_a_filter_matching_nothing_gives_empty_answers(copy_path: Path) -> None:
+    nobody = {"shift": "midnight"}
+    doc = crosstab(copy_path, "gender", "role", nobody)
+    assert doc["n"] == 0 and doc["chi2"] is None and doc["counts"]["matrix"] == []
+    assert label_counts(copy_path, "role", nobody) == []
+    assert sample_rows(copy_path, 5, nobody) == []
+    assert column_values(copy_path, "role", 5, where=nobody)["values"] == []
+    # One label left on a side: counts, but no test of independence.
+    single = crosstab(copy_path, "role", "shift", {"shift": "dawn"})
+    assert single["counts"]["b_labels"] == ["dawn"] and single["p_value"] is None

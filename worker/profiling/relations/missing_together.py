@@ -34,7 +34,8 @@ class MissingTogether:
         masks = np.column_stack([np.asarray(missing[name]) for name in self.columns])
         self.rows += masks.shape[0]
         if masks.any():
-            m = masks.astype(np.float32)  # exact: a batch has far fewer than 2**24 rows
+            # float32 sums of ones are exact below 2**24 rows; larger batches take float64.
+            m = masks.astype(np.float32 if masks.shape[0] < 2**24 else np.float64)
             self.both += np.rint(m.T @ m).astype(np.int64)
 
     def merge(self, other: MissingTogether) -> MissingTogether:
