@@ -32,6 +32,7 @@ class Conversion:
 # NIST SP 811, Appendix B.8 and B.9 (exact factors by definition of the units).
 KNOWN_CONVERSIONS: tuple[Conversion, ...] = (
     Conversion("°C", "°F", 1.8, 32.0),
+    Conversion("°C", "K", 1.0, 273.15),
     Conversion("kg", "lb", 1.0 / 0.45359237),  # 1 lb = 0.45359237 kg: 2.20462262 lb/kg
     Conversion("mi", "km", 1.609344),
     Conversion("ft", "m", 0.3048),

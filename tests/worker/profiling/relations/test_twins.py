@@ -33,6 +33,7 @@ MILES = RNG.uniform(1, 300, 3000).round(2)
         ((MILES * 1.609344).round(2), MILES, "km", "mi"),
         (MILES * 10, (MILES * 3.048).round(2), "ft", "m"),
         (MILES, (MILES * 2.54).round(2), "in", "cm"),
+        ((CELSIUS + 273.15).round(2), CELSIUS, "K", "°C"),
     ],
 )
 def test_planted_conversion_gets_its_hint(a, b, source, target) -> None:
