@@ -18,8 +18,8 @@ from typing import Any
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
-from server.settings import Settings, get_settings
-from server.store import Intake, Profile, session_scope
+from server.settings import Settings
+from server.store import Intake, Profile
 from server.store.reviews import (
     Judgement,
     SupplierRules,
@@ -129,15 +129,6 @@ def judge_quietly(session: Session, intake: Intake, settings: Settings) -> None:
             judge(session, intake, settings)
     except Exception:
         log.exception("judging intake %s failed; its profile is kept unjudged", intake.id)
-
-
-def judge_intake(intake_id: int, settings: Settings | None = None) -> None:
-    """Judge one stored intake again in a transaction of its own."""
-    settings = settings or get_settings()
-    with session_scope(settings) as session:
-        intake = session.get(Intake, intake_id)
-        if intake is not None:
-            judge(session, intake, settings)
 
 
 FOLLOWERS_MAX = 20

@@ -29,7 +29,7 @@ import numpy as np
 import yaml
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
-from worker.profiling.judgement.thresholds import FlagThresholds
+from worker.profiling.judgement.thresholds import FlagThresholds, with_overrides
 from worker.profiling.judgement.wording import number, percent
 
 Kind = Literal["numeric", "categorical", "boolean", "datetime", "text", "identifier", "empty"]
@@ -180,14 +180,14 @@ def parse_rules(document: str | bytes | dict[str, Any]) -> SupplierRules:
     return rules
 
 
-def thresholds_for(rules: SupplierRules | dict[str, Any] | None, base: FlagThresholds):
+def thresholds_for(
+    rules: SupplierRules | dict[str, Any] | None, base: FlagThresholds
+) -> FlagThresholds:
     """The thresholds to judge with: ``base`` with the rules' overrides applied."""
     if rules is None:
         return base
     parsed = rules if isinstance(rules, SupplierRules) else parse_rules(rules)
-    if not parsed.thresholds:
-        return base
-    return FlagThresholds.model_validate({**base.model_dump(), **parsed.thresholds})
+    return with_overrides(base, parsed.thresholds)
 
 
 # ---------------------------------------------------------------------------
