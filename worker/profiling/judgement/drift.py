@@ -49,11 +49,10 @@ from worker.profiling.judgement.distances import (
     psi,
     values_from_percentiles,
 )
-from worker.profiling.judgement.flags import stability_flags
+from worker.profiling.judgement.flags import LABEL_KINDS, stability_flags
 from worker.profiling.judgement.tables import chi_square
 from worker.profiling.judgement.thresholds import FlagThresholds
 
-LABEL_KINDS = ("categorical", "boolean")
 OTHER = "(other labels)"
 """The bucket of labels a profile counted but did not list."""
 
