@@ -16,10 +16,10 @@ from fastapi.responses import Response
 
 from server.api.deps import CurrentUser, IntakeDep, SessionDep
 from server.api.errors import ApiError
+from server.pages.profile_cache import cached_profile
 from server.pages.profile_view import flags_by_column
 from server.pages.report import render_report
 from server.security.exports import neutralise_row
-from server.security.masking import visible_profile
 from server.store import Intake
 
 router = APIRouter(include_in_schema=False)
@@ -83,9 +83,10 @@ def summary_csv(profile: dict[str, Any]) -> str:
 
 
 def _profile(session: SessionDep, intake: Intake) -> dict[str, Any]:
-    if intake.profile is None:
+    profile = cached_profile(session, intake)
+    if profile is None:
         raise ApiError(409, f"intake {intake.id} has no profile yet", code="not_ready")
-    return visible_profile(session, intake.id, intake.profile.document)
+    return profile
 
 
 def _attachment(name: str) -> dict[str, str]:

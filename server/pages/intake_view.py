@@ -13,6 +13,7 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.pages import figures
+from server.pages.profile_cache import cached_profile
 from server.pages.profile_view import (
     column_cards,
     correlation_figures,
@@ -21,10 +22,12 @@ from server.pages.profile_view import (
     score_rows,
 )
 from server.pages.review_view import VERDICT_WORDS, flag_key, judged_profile, review
-from server.security.masking import visible_profile
 from server.settings import Settings
 from server.store import Intake, IntakeStatus, Profile
 from worker.profiling.judgement import compare_profiles
+
+INLINE_FIGURES = 12
+"""Column figures sent with the page; the others are fetched as their cards come near."""
 
 DRIFT_FIGURES = 6
 """Columns whose baseline-against-target figure the page draws, the most shifted first."""
@@ -90,9 +93,9 @@ def intake_context(session: Session, intake: Intake, settings: Settings) -> dict
     (rules and baseline included) when it has one; otherwise from the profile,
     with the drift against the supplier's previous delivery computed here.
     """
-    assert intake.profile is not None
-    profile = visible_profile(session, intake.id, intake.profile.document)
-    profile = judged_profile(session, intake, profile)
+    shown = cached_profile(session, intake)
+    assert shown is not None
+    profile = judged_profile(session, intake, shown)
     flags = list(profile.get("flags") or [])
     reviewed = review(session, intake, flags)
     candidates = baseline_candidates(session, intake)
@@ -103,8 +106,8 @@ def intake_context(session: Session, intake: Intake, settings: Settings) -> dict
     else:
         baseline = default_baseline(candidates, intake)
     drift = None
-    if baseline is not None and baseline.profile is not None:
-        base_doc = visible_profile(session, baseline.id, baseline.profile.document)
+    base_doc = cached_profile(session, baseline) if baseline is not None else None
+    if base_doc is not None:
         drift = drift_view(base_doc, profile, settings)
         if judgement is not None and judgement.drift:
             drift["document"] = judgement.drift
@@ -118,7 +121,7 @@ def intake_context(session: Session, intake: Intake, settings: Settings) -> dict
         "verdict_reasons": profile.get("verdict_reasons") or [],
         "flag_groups": flag_groups(profile),
         "flag_count": len(flags),
-        "cards": column_cards(profile),
+        "cards": column_cards(profile, inline_figures=INLINE_FIGURES),
         "missing_figure": figures.missing_figure(profile),
         "missing_together_figure": figures.missing_together_figure(
             list(profile.get("missing_together") or [])

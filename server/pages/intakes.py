@@ -5,15 +5,17 @@ from __future__ import annotations
 from datetime import date
 
 from fastapi import APIRouter, Query, Request
-from fastapi.responses import HTMLResponse
+from fastapi.responses import HTMLResponse, JSONResponse
 from sqlalchemy import select
 
 from server.api.deps import CurrentUser, SessionDep, SettingsDep
 from server.api.errors import ApiError
 from server.pages.intake_view import intake_context
 from server.pages.listing import DECISIONS, SORTS, STATUSES, ListFilters, intake_page
+from server.pages.profile_cache import cached_profile
+from server.pages.profile_view import column_figures
 from server.pages.templating import templates
-from server.store import Intake, Supplier
+from server.store import Intake, IntakeStatus, Profile, Supplier
 
 router = APIRouter(include_in_schema=False)
 
@@ -97,6 +99,25 @@ def upload_form(
     )
 
 
+FIGURE_BATCH_LIMIT = 100
+
+
+@router.get("/intakes/{intake_id}/figures.json")
+def column_figure_batch(
+    intake_id: int,
+    session: SessionDep,
+    user: CurrentUser,
+    start: int = Query(0, ge=0),
+    count: int = Query(25, ge=1, le=FIGURE_BATCH_LIMIT),
+) -> JSONResponse:
+    """Figures of a run of columns, for the cards the intake page draws as they come near."""
+    intake = session.get(Intake, intake_id)
+    profile = cached_profile(session, intake) if intake is not None else None
+    if profile is None:
+        raise ApiError(404, f"intake {intake_id} has no profile", code="not_found")
+    return JSONResponse(column_figures(profile, start, count))
+
+
 @router.get("/intakes/{intake_id}", response_class=HTMLResponse)
 def intake_page_view(
     intake_id: int,
@@ -109,7 +130,9 @@ def intake_page_view(
     intake = session.get(Intake, intake_id)
     if intake is None:
         raise ApiError(404, f"there is no intake {intake_id}", code="not_found")
-    context = {"intake": intake, "user": user, "ready": intake.profile is not None}
-    if intake.profile is not None:
+    has_profile = session.scalar(select(Profile.id).where(Profile.intake_id == intake.id))
+    ready = intake.status == IntakeStatus.ready and has_profile is not None
+    context = {"intake": intake, "user": user, "ready": ready}
+    if ready:
         context.update(intake_context(session, intake, settings))
     return templates.TemplateResponse(request, "intake.html", context)

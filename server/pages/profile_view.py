@@ -56,6 +56,8 @@ class ColumnCard:
     missing_share: float | None = None
     variants: list[list[str]] = field(default_factory=list)
     sentinels: list[dict[str, Any]] = field(default_factory=list)
+    lazy: bool = False
+    """The figure is fetched by the page when the card scrolls into view."""
 
     @property
     def worst(self) -> str | None:
@@ -212,8 +214,16 @@ def _columns(profile: dict[str, Any]) -> list[dict[str, Any]]:
     return list(profile.get("columns") or [])
 
 
-def column_cards(profile: dict[str, Any]) -> list[ColumnCard]:
-    """One card per column, in file order, with its facts, figure and flags."""
+DRAWABLE_KINDS = frozenset({"numeric", "categorical", "boolean", "datetime"})
+
+
+def column_cards(profile: dict[str, Any], inline_figures: int | None = None) -> list[ColumnCard]:
+    """One card per column, in file order, with its facts, figure and flags.
+
+    With ``inline_figures``, only the first that many cards carry their figure;
+    the others are marked ``lazy`` when their kind has a figure, for the page to
+    fetch as they scroll into view (a 300-column page stays light).
+    """
     rows = int((profile.get("dataset") or {}).get("rows") or 0)
     by_column = flags_by_column(profile.get("flags") or [])
     cards = []
@@ -228,7 +238,12 @@ def column_cards(profile: dict[str, Any]) -> list[ColumnCard]:
                 kind=str(column.get("kind") or "unknown"),
                 anchor=column_anchor(position),
                 facts=column_facts(column, rows),
-                figure=figures.column_figure(column),
+                figure=figures.column_figure(column)
+                if inline_figures is None or index < inline_figures
+                else None,
+                lazy=inline_figures is not None
+                and index >= inline_figures
+                and column.get("kind") in DRAWABLE_KINDS,
                 flags=by_column.get(name, []),
                 missing_share=(int(column.get("missing") or 0) / rows) if rows else None,
                 variants=[list(map(str, v)) for v in labels.get("variants") or []],
@@ -236,6 +251,15 @@ def column_cards(profile: dict[str, Any]) -> list[ColumnCard]:
             )
         )
     return cards
+
+
+def column_figures(profile: dict[str, Any], start: int, count: int) -> dict[str, Figure | None]:
+    """The figures of columns ``start`` to ``start + count - 1``, keyed by figure id."""
+    columns = _columns(profile)[start : start + count]
+    return {
+        f"fig-col-{int(c.get('position', start + i))}": figures.column_figure(c)
+        for i, c in enumerate(columns)
+    }
 
 
 def correlation_figures(profile: dict[str, Any]) -> dict[str, Figure]:

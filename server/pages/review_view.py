@@ -14,7 +14,7 @@ from sqlalchemy.orm import Session, selectinload
 
 from server.security.masking import visible_profile
 from server.store import Intake
-from server.store.reviews import CommentThread, Decision, Judgement, Verdict, earlier_thread
+from server.store.reviews import CommentThread, Decision, Judgement, Verdict
 
 VERDICT_WORDS = {
     Verdict.accepted.value: "accept",
@@ -67,6 +67,32 @@ def flag_key(flag: dict[str, Any]) -> FlagKey:
     return (columns[0], str(flag.get("code")))
 
 
+def earlier_threads(
+    session: Session, intake: Intake, keys: set[FlagKey]
+) -> dict[FlagKey, CommentThread]:
+    """For each flag key, the newest thread on it in an earlier intake of the same supplier.
+
+    The same answer as ``earlier_thread`` per key, in one query for the whole page.
+    """
+    if not keys:
+        return {}
+    found: dict[FlagKey, CommentThread] = {}
+    codes = sorted({code for _, code in keys})
+    for thread in session.scalars(
+        select(CommentThread)
+        .where(
+            CommentThread.supplier_id == intake.supplier_id,
+            CommentThread.intake_id < intake.id,
+            CommentThread.flag_code.in_(codes),
+        )
+        .order_by(CommentThread.intake_id.desc(), CommentThread.id.desc())
+    ):
+        key = (thread.column, str(thread.flag_code))
+        if key in keys:
+            found.setdefault(key, thread)
+    return found
+
+
 def review(session: Session, intake: Intake, flags: list[dict[str, Any]]) -> Review:
     """The judgement, decisions (newest first) and threads of ``intake``."""
     judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
@@ -86,14 +112,7 @@ def review(session: Session, intake: Intake, flags: list[dict[str, Any]]) -> Rev
     ):
         if thread.flag_code is not None:
             threads.setdefault((thread.column, thread.flag_code), thread)
-    earlier: dict[FlagKey, CommentThread] = {}
-    for flag in flags:
-        key = flag_key(flag)
-        if key in earlier:
-            continue
-        found = earlier_thread(session, intake.supplier_id, intake.id, key[0], key[1])
-        if found is not None:
-            earlier[key] = found
+    earlier = earlier_threads(session, intake, {flag_key(f) for f in flags})
     earlier_intakes = {t.id: t.intake_id for t in earlier.values()}
     for thread in threads.values():
         if thread.earlier_thread_id is not None:

@@ -14,6 +14,7 @@ import subprocess
 import sys
 import time
 from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 import httpx
@@ -26,6 +27,8 @@ from playwright.sync_api import (
     Response,
     sync_playwright,
 )
+
+from server.settings import Settings
 
 CHROMIUM = Path("/usr/bin/chromium")
 CHROMIUM_ARGS = [
@@ -151,43 +154,54 @@ def server_environment(data_dir: Path) -> dict[str, str]:
     return env
 
 
-@pytest.fixture(scope="session")
-def live_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
-    """The base URL of a running ``tidewaiter serve`` loaded with the demo scenario."""
-    data_dir = tmp_path_factory.mktemp("live-server")
+@contextmanager
+def start_server(data_dir: Path) -> Iterator[tuple[str, Settings]]:
+    """Run ``tidewaiter serve`` on ``data_dir`` (migrated, demo loaded) until the block ends.
+
+    Yields the base URL and settings that reach the same database.
+    """
     env = server_environment(data_dir)
     command = [str(Path(sys.executable).with_name("tidewaiter"))]
     subprocess.run([*command, "db", "upgrade"], env=env, cwd=REPO, check=True, capture_output=True)
     # The demo scenario: its suppliers, deliveries and one account per role.
     subprocess.run([*command, "demo", "load"], env=env, cwd=REPO, check=True, capture_output=True)
     port = _free_port()
-    log = (data_dir / "server.log").open("w")
-    process = subprocess.Popen(
-        [*command, "serve", "--port", str(port), "--log-level", "warning"],
-        env=env,
-        cwd=REPO,
-        stdout=log,
-        stderr=subprocess.STDOUT,
-    )
-    base = f"http://127.0.0.1:{port}"
-    deadline = time.monotonic() + 30
-    while True:
+    log_path = data_dir / "server.log"
+    with log_path.open("w") as log:
+        process = subprocess.Popen(
+            [*command, "serve", "--port", str(port), "--log-level", "warning"],
+            env=env,
+            cwd=REPO,
+            stdout=log,
+            stderr=subprocess.STDOUT,
+        )
         try:
-            if httpx.get(f"{base}/healthz", timeout=1).status_code < 500:
-                break
-        except httpx.HTTPError:
-            pass
-        if process.poll() is not None or time.monotonic() > deadline:
-            process.kill()
-            pytest.fail("the test server did not start:\n" + (data_dir / "server.log").read_text())
-        time.sleep(0.2)
-    yield base
-    process.terminate()
-    try:
-        process.wait(timeout=10)
-    except subprocess.TimeoutExpired:
-        process.kill()
-    log.close()
+            base = f"http://127.0.0.1:{port}"
+            deadline = time.monotonic() + 30
+            while True:
+                try:
+                    if httpx.get(f"{base}/healthz", timeout=1).status_code < 500:
+                        break
+                except httpx.HTTPError:
+                    pass
+                if process.poll() is not None or time.monotonic() > deadline:
+                    raise RuntimeError("the test server did not start:\n" + log_path.read_text())
+                time.sleep(0.2)
+            database = f"sqlite:///{data_dir / 'tidewaiter.sqlite3'}"
+            yield base, Settings(data_dir=data_dir, database_url=database)
+        finally:
+            process.terminate()
+            try:
+                process.wait(timeout=10)
+            except subprocess.TimeoutExpired:
+                process.kill()
+
+
+@pytest.fixture(scope="session")
+def live_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
+    """The base URL of a running ``tidewaiter serve`` loaded with the demo scenario."""
+    with start_server(tmp_path_factory.mktemp("live-server")) as (base, _settings):
+        yield base
 
 
 DEMO_PASSWORD = "harbour-demo-only"

@@ -24,14 +24,44 @@
     return window.Plotly.newPlot(element, figure.data, figure.layout, CONFIG);
   }
 
+  var BATCH = 25;
+  var fetched = {};
+
+  function nothing(element) {
+    element.dataset.state = "none";
+    element.classList.add("figure-none");
+    element.textContent = "Nothing to draw.";
+  }
+
+  function drawLater(element) {
+    // A lazy card: fetch the figures of its run of columns once, then draw it.
+    var start = Math.floor(Number(element.dataset.position) / BATCH) * BATCH;
+    var url = element.dataset.batch + "?start=" + start + "&count=" + BATCH;
+    fetched[url] = fetched[url] || fetch(url, { credentials: "same-origin" }).then(function (r) {
+      if (!r.ok) throw new Error("figures not available (" + r.status + ")");
+      return r.json();
+    });
+    element.dataset.state = "loading";
+    fetched[url].then(function (figures) {
+      var figure = figures[element.dataset.figure];
+      if (figure) plot(element, figure);
+      else nothing(element);
+    }).catch(function (error) {
+      element.dataset.state = "failed";
+      element.textContent = error.message;
+    });
+  }
+
   function draw(element) {
-    if (element.dataset.state === "drawn") return;
+    if (element.dataset.state === "drawn" || element.dataset.state === "loading") return;
     var figure = readJson(element.dataset.figure);
-    if (!figure) {
+    if (figure) {
+      plot(element, figure);
+    } else if (element.dataset.batch) {
+      drawLater(element);
+    } else {
       element.dataset.state = "missing";
-      return;
     }
-    plot(element, figure);
   }
 
   var observer = null;

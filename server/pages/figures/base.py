@@ -12,6 +12,8 @@ import math
 from collections.abc import Iterable
 from typing import Any
 
+import numpy as np
+
 from server.pages import palette
 
 Figure = dict[str, Any]
@@ -37,6 +39,8 @@ def safe_text(value: object, limit: int | None = None) -> str:
 
 def finite(value: object) -> float | None:
     """``value`` as a float when it is a finite number, else None."""
+    if value.__class__ is float:
+        return value if math.isfinite(value) else None  # type: ignore[arg-type]
     if isinstance(value, bool) or not isinstance(value, int | float):
         return None
     number = float(value)
@@ -46,6 +50,17 @@ def finite(value: object) -> float | None:
 def finite_list(values: Iterable[object]) -> list[float | None]:
     """Numbers for plotly: non-finite entries become None (a gap, not an error)."""
     return [finite(v) for v in values]
+
+
+def rounded(values: list[float | None], digits: int = 4) -> list[float | None]:
+    """Numbers cut to ``digits`` significant digits: plenty for a picture, and it keeps
+    the JSON of a page with hundreds of figures small."""
+    array = np.array([np.nan if v is None else v for v in values], dtype=np.float64)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        magnitude = np.floor(np.log10(np.abs(array)))
+        scale = np.where(np.isfinite(magnitude), 10.0 ** (digits - 1 - magnitude), 1.0)
+        cut = np.round(array * scale) / scale
+    return [None if math.isnan(v) else v for v in cut.tolist()]
 
 
 def base_layout(title: str | None = None, *, height: int = 320, **extra: Any) -> dict[str, Any]:

@@ -19,7 +19,7 @@ from server.pages.figures.base import (
     base_layout,
     finite,
     finite_list,
-    format_number,
+    rounded,
     safe_text,
 )
 
@@ -92,9 +92,7 @@ def numeric_figure(column: dict[str, Any]) -> Figure | None:
             "y": counts,
             "width": widths,
             "marker": {"color": palette.OKABE_ITO["blue"], "opacity": 0.78},
-            "customdata": [
-                [format_number(lo), format_number(hi)] for lo, hi in itertools.pairwise(edges)
-            ],
+            "customdata": [[f"{lo:.5g}", f"{hi:.5g}"] for lo, hi in itertools.pairwise(edges)],
             "hovertemplate": "%{customdata[0]} to %{customdata[1]}<br>%{y} rows<extra></extra>",
             "xaxis": "x",
             "yaxis": "y",
@@ -110,8 +108,8 @@ def numeric_figure(column: dict[str, Any]) -> Figure | None:
                 "type": "scatter",
                 "mode": "lines",
                 "name": "density",
-                "x": dx,
-                "y": [y * scale for y in dy],  # type: ignore[operator]
+                "x": rounded(dx),
+                "y": rounded([y * scale for y in dy]),  # type: ignore[operator]
                 "line": {"color": palette.OKABE_ITO["vermillion"], "width": 2},
                 "hoverinfo": "skip",
                 "xaxis": "x",
@@ -125,8 +123,8 @@ def numeric_figure(column: dict[str, Any]) -> Figure | None:
                 "type": "scatter",
                 "mode": "lines",
                 "name": "violin",
-                "x": dx + dx[::-1],
-                "y": half + [-y for y in half[::-1]],
+                "x": rounded(dx + dx[::-1]),
+                "y": rounded(half + [-y for y in half[::-1]], 3),
                 "fill": "toself",
                 "fillcolor": "rgba(86,180,233,0.35)",
                 "line": {"color": palette.OKABE_ITO["sky_blue"], "width": 1},

@@ -28,6 +28,10 @@ RESIDUAL_CAP = 4.0
 """Adjusted residuals beyond ±4 take the end colour, so one extreme cell does not
 wash out the rest; |r| > 2 is the usual mark of a notable cell (common practice)."""
 
+COLUMN_LIMIT = 40
+"""Most columns a correlation heatmap shows: those with the strongest ties (a larger
+matrix is unreadable on a screen; the pairs stay in the profile)."""
+
 TEXT_LIMIT = 24
 """Above this many rows or columns a heatmap drops its cell numbers (hover keeps them)."""
 
@@ -56,12 +60,21 @@ def correlation_figure(
     """Heatmap of one method's coefficients between every pair of columns it covers.
 
     ``columns`` fixes the order (the profile's column order); columns without
-    any pair of this method are left out. Missing pairs are blank cells.
+    any pair of this method are left out, and beyond ``COLUMN_LIMIT`` columns only
+    those with the strongest ties are kept. Missing pairs are blank cells.
     """
     chosen = [p for p in pairs if p.get("method") == method and finite(p.get("value")) is not None]
     if not chosen:
         return None
     involved = {p["a"] for p in chosen} | {p["b"] for p in chosen}
+    if len(involved) > COLUMN_LIMIT:
+        strongest: dict[str, float] = {}
+        for pair in chosen:
+            for name in (pair["a"], pair["b"]):
+                strongest[name] = max(strongest.get(name, 0.0), abs(float(pair["value"])))
+        ranked = sorted(involved, key=lambda n: (-strongest[n], n))
+        involved = set(ranked[:COLUMN_LIMIT])
+        chosen = [p for p in chosen if p["a"] in involved and p["b"] in involved]
     order = [c for c in (columns or []) if c in involved]
     order += sorted(involved - set(order))
     index = {name: i for i, name in enumerate(order)}

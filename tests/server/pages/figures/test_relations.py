@@ -95,3 +95,19 @@ def test_crosstab_labels_are_escaped() -> None:
     assert figure["layout"]["yaxis"]["ticktext"] == ["&lt;script&gt;"]
     assert figure["layout"]["xaxis"]["ticktext"] == ["&amp;"]
     assert figure["data"][0]["z"] == [[0.0]]  # no residuals stored: drawn neutral
+
+
+def test_wide_correlation_heatmaps_keep_the_most_tied_columns() -> None:
+    from server.pages.figures.relations import COLUMN_LIMIT
+
+    names = [f"c{i:02d}" for i in range(COLUMN_LIMIT + 10)]
+    # By construction: c00..c09 pair strongly with each other, every other pair weakly.
+    pairs = [
+        {"a": a, "b": b, "method": "pearson", "value": 0.9 if i < 10 and j < 10 else 0.1, "n": 5}
+        for i, a in enumerate(names)
+        for j, b in enumerate(names)
+        if i < j
+    ]
+    figure = correlation_figure(pairs, "pearson", names)
+    ticks = figure["layout"]["xaxis"]["ticktext"]
+    assert len(ticks) == COLUMN_LIMIT and ticks[:10] == names[:10]
