@@ -51,7 +51,8 @@ class DistinctState:
     def __init__(self, exact_bound: int, precision: int = 16) -> None:
         self.exact_bound = exact_bound
         self.precision = precision
-        self._values: pa.Array | None = None
+        self._parts: list[pa.Array] = []  # distinct values of batches, not yet joined
+        self._kept = 0
         self._registers: np.ndarray | None = None
 
     @property
@@ -67,20 +68,28 @@ class DistinctState:
             self._add_to_registers(hash_values(values))
             return
         batch = pc.unique(values)
-        if self._values is None:
-            self._values = batch
-        else:
-            if batch.type != self._values.type:
-                batch = batch.cast(self._values.type)
-            self._values = pc.unique(pa.concat_arrays([self._values, batch]))
-        if len(self._values) > self.exact_bound:
+        if self._parts and batch.type != self._parts[0].type:
+            batch = batch.cast(self._parts[0].type)
+        self._parts.append(batch)
+        self._kept += len(batch)
+        # The batches' distinct values are joined only when their sum passes twice the
+        # bound, so a column near the bound is not re-joined batch after batch.
+        if self._kept > 2 * self.exact_bound:
+            self._join()
+
+    def _join(self) -> None:
+        if len(self._parts) > 1:
+            self._parts = [pc.unique(pa.concat_arrays(self._parts))]
+        self._kept = len(self._parts[0]) if self._parts else 0
+        if self._kept > self.exact_bound:
             self._to_sketch()
 
     def _to_sketch(self) -> None:
         self._registers = np.zeros(1 << self.precision, dtype=np.uint8)
-        if self._values is not None:
-            self._add_to_registers(hash_values(self._values))
-        self._values = None
+        for part in self._parts:
+            self._add_to_registers(hash_values(part))
+        self._parts = []
+        self._kept = 0
 
     def _add_to_registers(self, hashes: np.ndarray) -> None:
         assert self._registers is not None
@@ -93,25 +102,24 @@ class DistinctState:
     def merge(self, other: DistinctState) -> DistinctState:
         out = DistinctState(self.exact_bound, self.precision)
         if self.exact and other.exact:
-            parts = [v for v in (self._values, other._values) if v is not None]
+            parts = [*self._parts, *other._parts]
             if parts:
-                if len(parts) == 2 and parts[1].type != parts[0].type:
-                    parts[1] = parts[1].cast(parts[0].type)
-                out._values = pc.unique(pa.concat_arrays(parts))
-                if len(out._values) > out.exact_bound:
-                    out._to_sketch()
+                out._parts = [part.cast(parts[0].type) for part in parts]
+                out._join()
             return out
         out._registers = np.zeros(1 << self.precision, dtype=np.uint8)
         for part in (self, other):
             if part._registers is not None:
                 np.maximum(out._registers, part._registers, out=out._registers)
-            elif part._values is not None:
-                out._add_to_registers(hash_values(part._values))
+            for values in part._parts:
+                out._add_to_registers(hash_values(values))
         return out
 
     def estimate(self) -> int:
         if self._registers is None:
-            return 0 if self._values is None else len(self._values)
+            self._join()
+        if self._registers is None:
+            return self._kept
         m = float(self._registers.size)
         alpha = 0.7213 / (1.0 + 1.079 / m)
         raw = alpha * m * m / float(np.sum(np.exp2(-self._registers.astype(np.float64))))
@@ -121,7 +129,8 @@ class DistinctState:
         return round(raw)
 
     def finalize(self) -> dict[str, Any]:
-        out: dict[str, Any] = {"distinct": self.estimate(), "distinct_exact": self.exact}
+        distinct = self.estimate()
+        out: dict[str, Any] = {"distinct": distinct, "distinct_exact": self.exact}
         if not self.exact:
             out["distinct_relative_error"] = 1.04 / math.sqrt(1 << self.precision)
         return out
