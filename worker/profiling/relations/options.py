@@ -25,6 +25,12 @@ class RelationsOptions(BaseModel):
         "the sample size (common practice: the standard error of rho on 200,000 rows is "
         "about 0.002, and ranking costs grow with the square of the numeric columns).",
     )
+    rank_sample_cells: int = Field(
+        4_000_000,
+        ge=1000,
+        description="Most values (rows × numeric columns, 8 bytes each) the row sample holds; "
+        "a wide table gets fewer sample rows so memory stays bounded (common practice).",
+    )
     pair_columns: int = Field(
         60,
         ge=2,

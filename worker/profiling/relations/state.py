@@ -42,7 +42,10 @@ class RelationsState:
         self.numeric = list(numeric)[: relations.pair_columns]
         self.labels = list(labels)[: relations.pair_columns]
         self.comoments = CoMoments(self.numeric)
-        self.sample = RowSample(self.numeric, relations.rank_sample_rows)
+        sample_rows = min(
+            relations.rank_sample_rows, relations.rank_sample_cells // max(len(self.numeric), 1)
+        )
+        self.sample = RowSample(self.numeric, max(sample_rows, 10))
         self.codes = LabelCodes(self.labels, relations.label_bound)
         self.pair_counts = PairCounts(self.labels)
         self.groups = GroupMoments(self.numeric)

@@ -171,3 +171,8 @@ def test_pairs_are_bounded_by_the_column_limit() -> None:
     options = ProfileOptions(relations=RelationsOptions(pair_columns=2))
     state = RelationsState(NUMERIC, LABELS, options)
     assert state.numeric == NUMERIC[:2] and state.labels == LABELS[:2]
+
+
+def test_wide_tables_get_a_smaller_sample() -> None:
+    options = ProfileOptions(relations=RelationsOptions(rank_sample_cells=3000))
+    assert RelationsState(NUMERIC, LABELS, options).sample.k == 1000  # 3000 values / 3 columns
