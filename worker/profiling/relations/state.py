@@ -11,6 +11,7 @@ import copy
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
+import pyarrow as pa
 
 from worker.profiling.relations.association import (
     GroupMoments,
@@ -56,11 +57,21 @@ class RelationsState:
         if self.missing is None:
             self.missing = MissingTogether(list(batch.missing))
         self.missing.update(batch.missing)
-        numbers = {name: batch.numbers[name] for name in self.numeric}
+        rows = batch.raw.num_rows
+        # A column the batch did not parse (the engine's plan changed) counts as missing here.
+        numbers = {
+            name: batch.numbers[name] if name in batch.numbers else np.full(rows, np.nan)
+            for name in self.numeric
+        }
         shifted = ShiftedBatch.of(numbers, self.numeric)
         self.comoments.update_shifted(shifted)
         self.sample.update(numbers, batch.offset)
-        codes = self.codes.encode({name: batch.labels[name] for name in self.labels})
+        codes = self.codes.encode(
+            {
+                name: batch.labels[name] if name in batch.labels else pa.nulls(rows, pa.string())
+                for name in self.labels
+            }
+        )
         sizes = {name: len(self.codes.index[name]) for name in self.labels}
         self.pair_counts.update(codes, sizes)
         self.groups.update(shifted, codes, sizes)

@@ -176,3 +176,17 @@ def test_pairs_are_bounded_by_the_column_limit() -> None:
 def test_wide_tables_get_a_smaller_sample() -> None:
     options = ProfileOptions(relations=RelationsOptions(rank_sample_cells=3000))
     assert RelationsState(NUMERIC, LABELS, options).sample.k == 1000  # 3000 values / 3 columns
+
+
+def test_a_column_missing_from_a_batch_counts_as_missing() -> None:
+    frame = landings(300)
+    state = RelationsState(NUMERIC, LABELS, ProfileOptions())
+    batches = list(prepared_batches(frame, NUMERIC, LABELS, batch_rows=100))
+    first = batches[0]
+    numbers = {k: v for k, v in first.numbers.items() if k != "catch_kg"}
+    labels = {k: v for k, v in first.labels.items() if k != "harbour"}
+    state.update(type(first)(**{**first.__dict__, "numbers": numbers, "labels": labels}))
+    for batch in batches[1:]:
+        state.update(batch)
+    pairs = by_method(state.finalize(KINDS), "pearson")
+    assert pairs[("air_c", "catch_kg")]["n"] == int(frame["catch_kg"].iloc[100:].notna().sum())
