@@ -177,20 +177,25 @@ def _rename_bound(base: dict[str, Any], target: dict[str, Any], t: FlagThreshold
     return max(t.rename_max_distance, KS_CRITICAL_5 * ((n + m) / (n * m)) ** 0.5)
 
 
-def _may_match(base: dict[str, Any], target: dict[str, Any]) -> bool:
-    """Cheap first test before a distance: same family, overlapping middle halves (numeric)."""
-    family = _family(base.get("kind"))
-    if family is None or family != _family(target.get("kind")):
-        return False
+def _match_key(column: dict[str, Any]) -> tuple[str, Any] | None:
+    """What the cheap rename pre-test compares: quartiles (numeric) or listed labels."""
+    family = _family(column.get("kind"))
     if family == "labels":
-        b = {str(i["value"]) for i in (base.get("labels") or {}).get("top") or []}
-        g = {str(i["value"]) for i in (target.get("labels") or {}).get("top") or []}
-        return bool(b & g)
-    b, g = usable_numeric(base), usable_numeric(target)
-    if not (b and g):
+        return family, {str(i["value"]) for i in (column.get("labels") or {}).get("top") or []}
+    if family == "numeric" and usable_numeric(column):
+        percentiles = column["numeric"]["percentiles"]
+        return family, (percentiles[25], percentiles[75])
+    return None
+
+
+def _may_match(base: tuple[str, Any] | None, target: tuple[str, Any] | None) -> bool:
+    """Same family, and overlapping middle halves (numeric) or a shared label."""
+    if base is None or target is None or base[0] != target[0]:
         return False
-    bq, gq = b["percentiles"], g["percentiles"]
-    return bq[25] <= gq[75] and gq[25] <= bq[75]
+    if base[0] == "labels":
+        return bool(base[1] & target[1])
+    (b1, b3), (g1, g3) = base[1], target[1]
+    return b1 <= g3 and g1 <= b3
 
 
 def _distance(base: dict[str, Any], target: dict[str, Any], t: FlagThresholds) -> float | None:
@@ -210,11 +215,13 @@ def _renames(
     label pair when its Jensen-Shannon distance is within the threshold; each
     column is matched at most once, closest pairs first, and only when no
     other column fits nearly as well (a rival within twice the distance makes
-    the pair too ambiguous to call). At most
-    RENAME_PAIRS_MAX pairs are compared, so a file whose every column was
-    renamed stays quick (the evidence says when the search was cut short).
+    the pair too ambiguous to call). At most RENAME_PAIRS_MAX pairs are
+    compared, so a file whose every column was renamed stays quick (the
+    evidence says when the search was cut short).
     """
-    pairs = [(old, new) for old in removed for new in added if _may_match(old, new)]
+    old_keys = [(old, _match_key(old)) for old in removed]
+    new_keys = [(new, _match_key(new)) for new in added]
+    pairs = [(o, n) for o, ok in old_keys for n, nk in new_keys if _may_match(ok, nk)]
     truncated = len(pairs) > RENAME_PAIRS_MAX
     candidates = []
     for old, new in pairs[:RENAME_PAIRS_MAX]:
@@ -222,22 +229,26 @@ def _renames(
         numeric = _family(old.get("kind")) == "numeric"
         bound = _rename_bound(old, new, t) if numeric else t.rename_max_distance
         if distance is not None and distance <= bound:
-            candidates.append((distance, old, new))
+            candidates.append((distance, old["name"], new["name"], new.get("kind"), numeric))
+    by_column: dict[tuple[str, str], list[float]] = {}
+    for distance, old_name, new_name, _kind, _numeric in candidates:
+        by_column.setdefault(("from", old_name), []).append(distance)
+        by_column.setdefault(("to", new_name), []).append(distance)
     renamed, used = [], set()
-    for distance, old, new in sorted(candidates, key=lambda c: c[0]):
-        if old["name"] in used or new["name"] in used:
+    for distance, old_name, new_name, kind, numeric in sorted(candidates, key=lambda c: c[0]):
+        if old_name in used or new_name in used:
             continue
-        rivals = [
-            d for d, o, n in candidates if (o is old) != (n is new) and (o is old or n is new)
-        ]
-        if rivals and min(rivals) < 2 * distance:
+        # The pair's own distance is in both lists; any other within twice it is a rival.
+        others = [*by_column[("from", old_name)], *by_column[("to", new_name)]]
+        others.remove(distance)
+        others.remove(distance)
+        if others and min(others) < 2 * distance:
             continue  # another column fits about as well: too ambiguous to call a rename
-        used |= {old["name"], new["name"]}
-        measure = "ks" if _family(old.get("kind")) == "numeric" else "js_distance"
-        evidence = {"kind": new.get("kind"), measure: distance}
+        used |= {old_name, new_name}
+        evidence = {"kind": kind, "ks" if numeric else "js_distance": distance}
         if truncated:
             evidence["search_cut_at_pairs"] = RENAME_PAIRS_MAX
-        renamed.append({"from": old["name"], "to": new["name"], "evidence": evidence})
+        renamed.append({"from": old_name, "to": new_name, "evidence": evidence})
     return renamed
 
 
