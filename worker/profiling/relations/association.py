@@ -117,9 +117,12 @@ class PairCounts:
                 previous = self.counts.get((a, b), np.zeros((0, 0), dtype=np.int64))
                 self.counts[(a, b)] = _grow(previous, la, lb) + table
 
-    def merge(self, other: PairCounts, remap: Mapping[str, np.ndarray], sizes) -> PairCounts:
+    def merge(
+        self, other: PairCounts, remap: Mapping[str, np.ndarray], sizes: Mapping[str, int]
+    ) -> PairCounts:
+        """Add other's tables, whose label codes ``remap`` maps onto this state's."""
         merged = PairCounts(self.columns)
-        for key in set(self.counts) | set(other.counts):
+        for key in [*self.counts, *(k for k in other.counts if k not in self.counts)]:
             a, b = key
             table = _grow(self.counts.get(key, np.zeros((0, 0), np.int64)), sizes[a], sizes[b])
             if key in other.counts:
@@ -199,7 +202,10 @@ class GroupMoments:
             m2 = m2_a + m2_b + np.where(n > 0, delta * delta * n_a * n_b / n, 0.0)
         self.stats[label_name] = (n, mean, m2)
 
-    def merge(self, other: GroupMoments, remap: Mapping[str, np.ndarray], sizes) -> GroupMoments:
+    def merge(
+        self, other: GroupMoments, remap: Mapping[str, np.ndarray], sizes: Mapping[str, int]
+    ) -> GroupMoments:
+        """Chan-merge other's per-label moments, whose codes ``remap`` maps onto this state's."""
         merged = GroupMoments(self.numeric)
         merged.stats = dict(self.stats)
         for label_name, value in other.stats.items():
