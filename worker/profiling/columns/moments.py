@@ -39,19 +39,20 @@ class MomentsState:
         n = int(values.size)
         if n == 0:
             return state
-        mean = float(values.mean())
+        total = float(values.sum())
+        mean = total / n
         dev = values - mean
         # A second pass corrects the mean's rounding (the "corrected two-pass" of Chan et al.).
-        correction = float(dev.mean())
+        correction = float(dev.sum()) / n
         mean += correction
         dev -= correction
         dev2 = dev * dev
         state.n = n
         state.mean = mean
         state.m2 = float(dev2.sum())
-        state.m3 = float((dev2 * dev).sum())
-        state.m4 = float((dev2 * dev2).sum())
-        state.total = float(values.sum())
+        state.m3 = float(np.dot(dev2, dev))
+        state.m4 = float(np.dot(dev2, dev2))
+        state.total = total
         state.minimum = float(values.min())
         state.maximum = float(values.max())
         return state
