@@ -21,6 +21,7 @@ with warnings.catch_warnings():
 from sqlalchemy import select
 
 from server.api.deps import User, current_user
+from server.demo.reviews import add_reviews
 from server.demo.scenario import SUPPLIERS, deliveries
 from server.security.demo_accounts import ensure_demo_accounts
 from server.settings import Settings
@@ -60,6 +61,7 @@ def load_demo(settings: Settings, *, wait_seconds: float = 120.0) -> DemoResult:
     from server.app import create_app
 
     result = DemoResult()
+    sent: dict[str, int] = {}
     with session_scope(settings) as session:
         result.accounts = ensure_demo_accounts(session)
     app = create_app(settings)
@@ -86,10 +88,14 @@ def load_demo(settings: Settings, *, wait_seconds: float = 120.0) -> DemoResult:
             if answer.status_code != 201:
                 raise RuntimeError(f"upload of {delivery.filename} refused: {answer.text}")
             result.created.append(answer.json()["id"])
+            sent[delivery.filename] = answer.json()["id"]
         if settings.job_runner == "inprocess":
             deadline = time.monotonic() + wait_seconds
             while time.monotonic() < deadline and _unfinished(settings, result.created):
                 time.sleep(0.2)
+        if sent and not _unfinished(settings, result.created):
+            add_reviews(app, client, settings, sent, deliveries())
+        app.dependency_overrides[current_user] = lambda: LOADER
     with session_scope(settings) as session:
         for intake_id in result.created:
             result.statuses[intake_id] = session.get(Intake, intake_id).status

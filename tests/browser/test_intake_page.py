@@ -12,6 +12,7 @@ from server.demo.scenario import deliveries
 from tests.browser.conftest import intake_id, screenshot_widths, sign_in
 
 LANDINGS = "brannock-landings-2031-w10.csv"
+SAMPLES = "saltmere-samples-2031-w10.csv"
 TIDE = "gullwick-2031-03.csv"
 
 
@@ -22,12 +23,12 @@ def demo_frame(name: str) -> pd.DataFrame:
 
 def test_comment_on_a_flag_is_seen_by_another_user(page: Page, new_page, live_server: str):
     sign_in(page, live_server, "demo-reviewer")
-    number = intake_id(page, live_server, LANDINGS)
+    number = intake_id(page, live_server, SAMPLES)
     page.goto(f"{live_server}/intakes/{number}")
-    group = page.locator(".flag-group", has=page.locator("h3 a", has_text="price_per_kg"))
+    group = page.locator(".flag-group", has=page.locator("h3 a", has_text="dissolved_oxygen_mg_l"))
     discussion = group.locator(".discussion").first
     discussion.locator("summary").click()
-    text = "The clerk types 0 when the price is not known; ask them to leave it blank."
+    text = "The lab writes n/a when the oxygen probe was not taken out; ask for blanks."
     discussion.get_by_label("Comment").fill(text)
     discussion.get_by_role("button", name="Post").click()
     page.wait_for_load_state("load")

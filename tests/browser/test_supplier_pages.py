@@ -35,7 +35,7 @@ def test_comparison_page_sets_two_intakes_side_by_side(
 ) -> None:
     sign_in(page, live_server)
     page.goto(f"{live_server}/compare")
-    expect(page.locator("#supplier-table tbody tr")).to_have_count(2)
+    expect(page.locator("#supplier-table tbody tr")).to_have_count(3)  # the demo's suppliers
     first = page.get_by_label("First (compared against)")
     second = page.get_by_label("Second")
     first.select_option(label=first.locator("option", has_text="w10").inner_text())
