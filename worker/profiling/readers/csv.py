@@ -10,7 +10,9 @@ of fields are skipped and reported with their line number.
 from __future__ import annotations
 
 import io
-from collections.abc import Iterator
+import time
+import weakref
+from collections.abc import Callable, Iterator
 from pathlib import Path
 from typing import Any
 
@@ -22,7 +24,7 @@ from worker.profiling.options import ProfileOptions
 from worker.profiling.readers.compressed import GuardedStream, open_decompressed
 from worker.profiling.readers.encoding import arrow_encoding, decode_sample, detect_encoding
 from worker.profiling.readers.names import numbered_names, unique_names
-from worker.profiling.readers.sniff import sniff_dialect, split_records
+from worker.profiling.readers.sniff import preamble_lines, sniff_dialect, split_records
 from worker.profiling.readers.source import SourceInfo, TableSource
 
 _FIXED_LINE = -1  # marker: the error's line is already a physical line number
@@ -47,19 +49,32 @@ class CsvSource(TableSource):
         self._stream: GuardedStream | None = None
         self._rows_read = 0
         self._pending: list[tuple[int | None, str, str]] = []
+        self._overflow: list[int] = []
         encoding = _encoding_of(head, tail)
         text = decode_sample(head, encoding).lstrip("\ufeff")
         dialect = sniff_dialect(text, complete=complete)
+        self._skip = preamble_lines(text, dialect)
+        if self._skip:
+            skipped = [line for line in text.splitlines()[: self._skip] if line.strip()]
+            self._errors.add(
+                1,
+                f"the {self._skip} line(s) before the table were skipped, "
+                f"starting {skipped[0][:60]!r}",
+            )
+            text = "\n".join(text.splitlines()[self._skip :])
+            dialect = sniff_dialect(text, complete=complete)
         lines = [line for line in text.splitlines()[:50] if line.strip()]
-        if not complete and len(lines) > 1:
+        if not complete and len(lines) > 50:
             lines = lines[:-1]
         records = split_records(lines, dialect.delimiter, dialect.quotechar)
+        if not records:
+            raise ProfileError("no line of the file holds a row of the table")
         if dialect.header:
             self.column_names, fixes = unique_names(records[0])
             for fix in fixes:
-                self._errors.add(1, fix)
+                self._errors.add(self._skip + 1, fix)
         else:
-            widths = [len(row) for row in records] or [1]
+            widths = [len(row) for row in records]
             self.column_names = numbered_names(max(set(widths), key=widths.count))
         self.info = SourceInfo(
             format="csv",
@@ -82,21 +97,35 @@ class CsvSource(TableSource):
         self._stream = open_decompressed(self.path, self._compression, self._options)
         return pa.PythonFile(self._stream, mode="r")
 
-    def _on_invalid_row(self, row: pacsv.InvalidRow) -> str:
-        fields = "field" if row.actual_columns == 1 else "fields"
-        message = f"the row has {row.actual_columns} {fields} where {row.expected_columns} belong"
-        if len(self._pending) < self._errors.limit:
-            self._pending.append((row.number, row.text, message))
-        else:
-            self._errors.count += 1
-        return "skip"
+    def _invalid_row_handler(self) -> Callable[[pacsv.InvalidRow], str]:
+        """A handler that notes broken rows and skips them.
+
+        It closes over plain lists, not over this source, so the native
+        reader holding it forms no reference cycle with the source.
+        """
+        pending = self._pending
+        overflow = self._overflow
+        limit = self._errors.limit
+
+        def note(row: pacsv.InvalidRow) -> str:
+            fields = "field" if row.actual_columns == 1 else "fields"
+            message = (
+                f"the row has {row.actual_columns} {fields} where {row.expected_columns} belong"
+            )
+            if len(pending) < limit:
+                pending.append((row.number, row.text, message))
+            else:
+                overflow.append(1)
+            return "skip"
+
+        return note
 
     def batches(self) -> Iterator[pa.RecordBatch]:
         names = self.column_names
         read_options = pacsv.ReadOptions(
             use_threads=False,
             block_size=self._options.csv_block_bytes,
-            skip_rows=1 if self.info.header else 0,
+            skip_rows=self._skip + (1 if self.info.header else 0),
             column_names=names,
             encoding=arrow_encoding(self.info.encoding or "utf-8"),
         )
@@ -105,7 +134,7 @@ class CsvSource(TableSource):
             quote_char=self.info.quotechar or False,
             double_quote=True,
             newlines_in_values=True,
-            invalid_row_handler=self._on_invalid_row,
+            invalid_row_handler=self._invalid_row_handler(),
         )
         convert_options = pacsv.ConvertOptions(
             column_types={name: pa.string() for name in names},
@@ -113,9 +142,16 @@ class CsvSource(TableSource):
             quoted_strings_can_be_null=True,
             null_values=[""],
         )
+        reader = None
+        source = self._open()
+        # Arrow's background threads let go of these Python objects a moment
+        # after the last batch; the wait below makes sure they have.
+        held = [weakref.ref(parse_options.invalid_row_handler)]
+        if not isinstance(source, str):
+            held.append(weakref.ref(source))
         try:
             reader = pacsv.open_csv(
-                self._open(),
+                source,
                 read_options=read_options,
                 parse_options=parse_options,
                 convert_options=convert_options,
@@ -131,6 +167,12 @@ class CsvSource(TableSource):
         except (pa.ArrowException, OSError, UnicodeDecodeError) as exc:
             raise self._fatal(exc) from exc
         finally:
+            # Closed and awaited here: an Arrow thread that still holds a
+            # Python object when the interpreter exits aborts the process.
+            if reader is not None:
+                reader.close()
+            del reader, parse_options, source
+            _wait_until_released(held)
             self.close()
         self._consumed = self.total_bytes
         self._settle_errors()
@@ -201,6 +243,7 @@ class CsvSource(TableSource):
             located = [number for number, _, _ in pending]
         for line, (_, _, message) in zip(located, pending, strict=True):
             self._errors.add(line, message)
+        self._errors.count += len(self._overflow)
 
     def _physical_lines(self, pending: list[tuple[int | None, str, str]]) -> list[int | None]:
         lines: list[int | None] = [number for number, _, _ in pending]
@@ -234,6 +277,13 @@ class CsvSource(TableSource):
         if self._stream is not None:
             self._stream.close()
             self._stream = None
+
+
+def _wait_until_released(held: list[weakref.ref[Any]], timeout: float = 2.0) -> None:
+    """Wait (briefly) until native threads have dropped the Python objects given to them."""
+    deadline = time.monotonic() + timeout
+    while any(ref() is not None for ref in held) and time.monotonic() < deadline:
+        time.sleep(0.001)
 
 
 def _encoding_of(head: bytes, tail: bytes) -> str:

@@ -64,6 +64,33 @@ def sniff_dialect(text: str, *, complete: bool) -> Dialect:
     )
 
 
+def preamble_lines(text: str, dialect: Dialect, *, limit: int = 20) -> int:
+    """How many physical lines before the table a person wrote (a title, an export note).
+
+    They are the leading lines with fewer fields than most records of the
+    sample (blank lines among them included); 0 when the table starts at once.
+    """
+    lines = text.splitlines()
+    records = split_records(
+        [line for line in lines if line.strip()][:MAX_SAMPLE_RECORDS],
+        dialect.delimiter,
+        dialect.quotechar,
+    )
+    widths = [len(row) for row in records]
+    if not widths:
+        return 0
+    modal = Counter(widths).most_common(1)[0][0]
+    if modal < 2:
+        return 0
+    for index, line in enumerate(lines[: limit + 1]):
+        if not line.strip():
+            continue
+        fields = split_records([line], dialect.delimiter, dialect.quotechar)
+        if fields and len(fields[0]) >= modal:
+            return index
+    return 0
+
+
 def split_records(lines: list[str], delimiter: str, quotechar: str) -> list[list[str]]:
     """The sample's lines split into fields, quotes honoured; blank records dropped."""
     reader = csv.reader(lines, delimiter=delimiter, quotechar=quotechar, doublequote=True)

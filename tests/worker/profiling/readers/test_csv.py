@@ -211,3 +211,12 @@ def test_invalid_utf8_past_the_samples_is_a_plain_error(tmp_path: Path) -> None:
     ):
         for _ in source.batches():
             pass
+
+
+def test_preamble_lines_before_the_table_are_skipped_and_reported(tmp_path: Path) -> None:
+    text = "Harbour report 2026\n\nExported by desk 4\nname,city\nx,1\ny,2,3\nz,4\n"
+    source, table = _read(_write(tmp_path, text))
+    assert source.column_names == ["name", "city"]
+    assert table.column("name").to_pylist() == ["x", "z"]
+    assert "3 line(s) before the table" in source.parse_errors[0]["message"]
+    assert source.parse_errors[1]["line"] == 6  # by construction: "y,2,3" is line 6
