@@ -156,8 +156,12 @@ def _cell_text(value: object) -> str | None:
         return value
     if isinstance(value, bool):
         return "TRUE" if value else "FALSE"
-    if isinstance(value, float) and value.is_integer() and abs(value) < 2**53:
-        return str(int(value))
+    if isinstance(value, float):
+        if value.is_integer() and abs(value) < 2**53:
+            return str(int(value))
+        # Excel shows at most 15 significant digits (Microsoft's Excel
+        # specifications and limits, recalled from memory): 0.1 + 0.2 is 0.3.
+        return format(value, ".15g")
     if isinstance(value, dt.datetime):
         if value.time() == dt.time(0):
             return value.date().isoformat()

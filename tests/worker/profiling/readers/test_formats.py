@@ -31,6 +31,7 @@ def _workbook(path: Path) -> Path:
     crates.append(["C-2", 7, None, False])
     crates.append([None, None, None, None])
     crates.append(["C-3", 3.0, dt.datetime(2026, 3, 5, 14, 30), None])
+    crates.append(["C-4", 0.1 + 0.2, None, None])
     docks = book.create_sheet("Docks")
     docks.append(["dock", "cranes"])
     docks.append(["Nord", 4])
@@ -43,9 +44,14 @@ def test_xlsx_first_sheet_by_default_with_all_sheets_listed(tmp_path: Path) -> N
     assert (source.info.format, source.info.sheet) == ("xlsx", "Crates")
     assert source.info.sheets == ["Crates", "Docks"]
     assert source.column_names == ["crate", "weight", "landed", "sealed"]
-    assert table.column("weight").to_pylist() == ["12.5", "7", "3"]
-    assert table.column("landed").to_pylist() == ["2026-03-04", None, "2026-03-05 14:30:00"]
-    assert table.column("sealed").to_pylist() == ["TRUE", "FALSE", None]
+    assert table.column("weight").to_pylist() == ["12.5", "7", "3", "0.3"]
+    assert table.column("landed").to_pylist() == [
+        "2026-03-04",
+        None,
+        "2026-03-05 14:30:00",
+        None,
+    ]
+    assert table.column("sealed").to_pylist() == ["TRUE", "FALSE", None, None]
 
 
 def test_xlsx_values_match_pandas(tmp_path: Path) -> None:
@@ -54,7 +60,8 @@ def test_xlsx_values_match_pandas(tmp_path: Path) -> None:
     # Reference: pandas.read_excel (openpyxl engine) on the same workbook.
     expected = pd.read_excel(path, sheet_name="Crates").dropna(how="all")
     assert table.column("crate").to_pylist() == expected["crate"].tolist()
-    assert [float(v) for v in table.column("weight").to_pylist()] == expected["weight"].tolist()
+    ours = [float(v) for v in table.column("weight").to_pylist()]
+    assert ours == pytest.approx(expected["weight"].tolist(), rel=1e-14)
 
 
 def test_xlsx_sheet_is_selectable(tmp_path: Path) -> None:
