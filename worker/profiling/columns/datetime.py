@@ -105,7 +105,7 @@ class _FormatState:
         self.future += int(np.count_nonzero(seconds > now))
         self.seconds.update(seconds.astype(np.float64))
         if self.finest < 5:
-            self.finest = max(self.finest, _finest_grain(seconds, present))
+            self.finest = max(self.finest, _finest_grain(seconds, present, self.finest))
 
     def merge(self, other: _FormatState) -> _FormatState:
         out = _FormatState(self.seconds.exact_bound, self.seconds.kll_k)
@@ -116,15 +116,25 @@ class _FormatState:
         return out
 
 
-def _finest_grain(seconds: np.ndarray, parsed: pa.Array) -> int:
+def _finest_grain(seconds: np.ndarray, parsed: pa.Array, known: int) -> int:
+    """The finest unit in which the values vary (an index into ``_GRAINS``), checking only
+    units finer than the ``known`` one already seen."""
     if np.any(seconds % 60):
         return 5
+    if known >= 4:
+        return known
     if np.any(seconds % 3600):
         return 4
+    if known >= 3:
+        return known
     if np.any(seconds % 86400):
         return 3
+    if known >= 2:
+        return known
     if pc.any(pc.not_equal(pc.day(parsed), 1)).as_py():
         return 2
+    if known >= 1:
+        return known
     if pc.any(pc.not_equal(pc.month(parsed), 1)).as_py():
         return 1
     return 0
