@@ -9,6 +9,7 @@ import sys
 from pathlib import Path
 
 import numpy as np
+import openpyxl
 import pytest
 
 from server.cli import main
@@ -120,3 +121,24 @@ def test_plain_makes_strict_json() -> None:
     value = {"a": np.float64("nan"), "b": [np.int64(3), float("inf")], "c": (1.5, "x")}
     assert plain(value) == {"a": None, "b": [3, None], "c": [1.5, "x"]}
     json.dumps(plain(value), allow_nan=False)
+
+
+def test_sheet_selects_a_workbook_sheet(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    path = tmp_path / "harbour.xlsx"
+    book = openpyxl.Workbook()
+    book.active.title = "Crates"
+    book.active.append(["crate"])
+    book.active.append(["C-1"])
+    docks = book.create_sheet("Docks")
+    docks.append(["dock", "cranes"])
+    for name, cranes in (("Nord", 4), ("Süd", 2), ("Ost", 3)):
+        docks.append([name, cranes])
+    book.save(path)
+    assert main(["profile", str(path), "--sheet", "Docks", "--quiet"]) == 0
+    profile = json.loads(capsys.readouterr().out)
+    assert (profile["source"]["sheet"], profile["source"]["sheets"]) == (
+        "Docks",
+        ["Crates", "Docks"],
+    )
+    assert profile["dataset"]["rows"] == 3
+    assert [column["name"] for column in profile["columns"]] == ["dock", "cranes"]
