@@ -38,7 +38,30 @@ def _fake_workbook() -> bytes:
     return buffer.getvalue()
 
 
+def _workbook_with_external_entity() -> bytes:
+    """A real workbook whose sheet declares an entity that reads a local file (XXE)."""
+    from openpyxl import Workbook
+
+    book = Workbook()
+    book.active.append(["station", "level_m"])
+    book.active.append(["north pier", 2.1])
+    clean = io.BytesIO()
+    book.save(clean)
+    attack = '<?xml version="1.0"?><!DOCTYPE x [<!ENTITY leak SYSTEM "file:///etc/passwd">]>'
+    attacked = io.BytesIO()
+    with zipfile.ZipFile(clean) as source, zipfile.ZipFile(attacked, "w") as target:
+        for info in source.infolist():
+            data = source.read(info)
+            if info.filename == "xl/worksheets/sheet1.xml":
+                text = data.decode()
+                body = text[text.index("<worksheet") :].replace("north pier", "&leak;")
+                data = (attack + body).encode()
+            target.writestr(info, data)
+    return attacked.getvalue()
+
+
 BROKEN = {
+    "external XML entity": ("levels.xlsx", _workbook_with_external_entity()),
     "random bytes": ("levels.csv", os.urandom(4096)),
     "truncated gzip": ("levels.csv.gz", _gzip_truncated()),
     "decompression bomb": ("levels.zip", _zip_bomb()),
@@ -49,6 +72,7 @@ BROKEN = {
 
 # A word of the plain reason each one gets.
 WORDS = {
+    "external XML entity": "entit",
     "random bytes": "binary",
     "truncated gzip": "truncated",
     "decompression bomb": "inflates",
@@ -68,6 +92,7 @@ def test_broken_files_fail_with_a_readable_reason(client, app_settings: Settings
     error = intake["error"]
     assert intake["status"] == "failed" and error
     assert "Traceback" not in error and str(app_settings.data_dir) not in error
+    assert "root:" not in error  # nothing of a local file leaks out
     assert len(error) < 500
     assert WORDS[case] in error
     refused = client.get(f"/api/v1/intakes/{intake['id']}/profile")
