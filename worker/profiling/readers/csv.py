@@ -52,6 +52,9 @@ class CsvSource(TableSource):
         self._overflow: list[int] = []
         encoding = _encoding_of(head, tail)
         text = decode_sample(head, encoding).lstrip("\ufeff")
+        # Bytes on disk per byte of decoded text, for the progress estimate.
+        decoded = len(text.encode("utf-8")) or 1
+        self._bytes_per_text_byte = len(head) / decoded if encoding != "utf-8" else 1.0
         dialect = sniff_dialect(text, complete=complete)
         self._skip = preamble_lines(text, dialect)
         if self._skip:
@@ -63,9 +66,10 @@ class CsvSource(TableSource):
             )
             text = "\n".join(text.splitlines()[self._skip :])
             dialect = sniff_dialect(text, complete=complete)
-        lines = [line for line in text.splitlines()[:50] if line.strip()]
-        if not complete and len(lines) > 50:
-            lines = lines[:-1]
+        physical = text.splitlines()
+        if not complete and len(physical) > 1:
+            physical = physical[:-1]  # it may be cut off
+        lines = [line for line in physical if line.strip()][:50]
         records = split_records(lines, dialect.delimiter, dialect.quotechar)
         if not records:
             raise ProfileError("no line of the file holds a row of the table")
@@ -86,9 +90,6 @@ class CsvSource(TableSource):
             thousands=dialect.thousands,
             compression=compression,
         )
-        # Bytes on disk per byte of decoded text, for the progress estimate.
-        decoded = len(text.encode("utf-8")) or 1
-        self._bytes_per_text_byte = len(head) / decoded if encoding not in ("utf-8",) else 1.0
 
     def _open(self) -> Any:
         """What pyarrow reads: the path itself, or a guarded decompressing stream."""
@@ -100,8 +101,8 @@ class CsvSource(TableSource):
     def _invalid_row_handler(self) -> Callable[[pacsv.InvalidRow], str]:
         """A handler that notes broken rows and skips them.
 
-        It closes over plain lists, not over this source, so the native
-        reader holding it forms no reference cycle with the source.
+        It closes over plain lists, not over this source: the native reader
+        (and its threads) hold only the handler and those lists.
         """
         pending = self._pending
         overflow = self._overflow
