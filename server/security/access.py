@@ -110,7 +110,8 @@ async def principal_for(request: Request, session: Session, *, self_service: boo
         owner = accounts.user_for_token(session, token) if token else None
         if owner is None:
             raise SignInRequired("The API token is unknown or revoked.")
-        session.commit()  # keeps the token's last use
+        if session.dirty:
+            session.commit()  # keeps the token's last use
         user = User(owner.id, owner.name, owner.role, owner.is_demo, via="token")
     else:
         secret = request.cookies.get(SESSION_COOKIE)
