@@ -7,6 +7,8 @@ time and peak resident memory belong to that run alone:
 
 - floor: ``pyarrow.csv.read_csv`` of the whole file with its default threads,
   the cost of merely parsing it;
+- reader: Tidewaiter's own reader alone (``open_table`` and every batch), to
+  tell reading from profiling;
 - profile: ``tidewaiter profile FILE --quiet --json /dev/null``;
 - pandas: the routine a person would write in a notebook (read_csv,
   describe(include="all"), quantile, value_counts per text column, corr,
@@ -47,6 +49,15 @@ FLOOR = textwrap.dedent(
     import pyarrow.csv as pacsv
     table = pacsv.read_csv(sys.argv[1])
     print(table.num_rows)
+    """
+)
+
+READ_ONLY = textwrap.dedent(
+    """
+    import sys
+    from worker.profiling.readers import open_table
+    with open_table(sys.argv[1]) as source:
+        print(sum(batch.num_rows for batch in source.batches()))
     """
 )
 
@@ -121,6 +132,7 @@ def main() -> int:
     profile_cmd = [TIDEWAITER, "profile", "--quiet", "--json", os.devnull]
     runs = {
         "floor": measure("floor", args.rows, [PYTHON, "-c", FLOOR, str(big)]),
+        "reader": measure("reader", args.rows, [PYTHON, "-c", READ_ONLY, str(big)]),
         "profile": measure("profile", args.rows, [*profile_cmd, str(big)]),
         "profile_small": measure("profile", args.small_rows, [*profile_cmd, str(small)]),
     }
@@ -130,6 +142,7 @@ def main() -> int:
     floor, profile, small_profile = runs["floor"], runs["profile"], runs["profile_small"]
     print("ratios:")
     ratio("profile / floor time", profile.seconds / floor.seconds, "<= 2.5", 2.5, below=True)
+    print(f"  {'reader alone / floor time':<34} {runs['reader'].seconds / floor.seconds:8.2f}")
     if "pandas" in runs:
         ratio("pandas / profile time", runs["pandas"].seconds / profile.seconds, ">= 6", 6)
     ratio("profile peak RSS (MB)", profile.peak_rss_mb, "<= 1024", 1024, below=True)
