@@ -69,7 +69,12 @@ def delete_intake(session: Session, store: FileStore, intake: Intake) -> None:
 
 
 def purge_by_settings(settings: Settings) -> list[int]:
-    """One retention round as the settings ask (none when ``retention_days`` is empty)."""
+    """One housekeeping round: expired sessions, stale failed sign-ins, and the stored files
+    older than ``retention_days`` when it is set; returns the ids of the purged intakes."""
+    window = timedelta(minutes=settings.security.failed_sign_in_window_minutes)
+    with session_scope(settings) as session:
+        accounts.purge_expired_sessions(session)
+        accounts.forget_failed_sign_ins(session, before=utcnow() - window)
     days = settings.security.retention_days
     if days is None:
         return []

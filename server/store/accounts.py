@@ -298,6 +298,12 @@ def failed_sign_ins(
     return list(session.scalars(query))
 
 
+def forget_failed_sign_ins(session: Session, *, before: datetime) -> int:
+    """Delete refused sign-ins older than ``before`` (they no longer count); returns how many."""
+    result = session.execute(delete(FailedSignIn).where(FailedSignIn.at < before))
+    return result.rowcount or 0
+
+
 def clear_failed_sign_ins(session: Session, account: str) -> None:
     """Forget an account's refused sign-ins (after a successful one)."""
     session.execute(delete(FailedSignIn).where(FailedSignIn.account == account[:100]))

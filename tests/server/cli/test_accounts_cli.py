@@ -126,3 +126,21 @@ def test_files_purge_removes_old_files_and_keeps_recent_ones(cli_settings, capsy
 def test_files_purge_without_a_setting_purges_nothing(cli_settings, capsys) -> None:
     assert main(["files", "purge"]) == 0
     assert "nothing purged" in capsys.readouterr().out
+
+
+def test_housekeeping_forgets_expired_sessions_and_old_failures(cli_settings) -> None:
+    from server.security.retention import purge_by_settings
+
+    with session_scope(cli_settings) as session:
+        user = accounts.create_user(session, "rui", "reviewer")
+        accounts.open_session(session, user, lifetime=timedelta(seconds=-1))
+        live = accounts.open_session(session, user, lifetime=timedelta(hours=1))
+        accounts.record_failed_sign_in(session, "rui", "10.0.0.1")
+        old = accounts.FailedSignIn(account="rui", address="10.0.0.1")
+        old.at = utcnow() - timedelta(days=1)
+        session.add(old)
+    assert purge_by_settings(cli_settings) == []  # no retention set: no files purged
+    with session_scope(cli_settings) as session:
+        assert session.query(accounts.UserSession).count() == 1
+        assert accounts.user_for_session(session, live).name == "rui"
+        assert session.query(accounts.FailedSignIn).count() == 1
