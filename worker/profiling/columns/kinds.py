@@ -36,6 +36,7 @@ class Candidates:
     text: bool
     typed: str | None = None  # the Arrow type of a typed (Parquet) column, else None
     number_share: float = 0.0  # share of the first values that read as numbers
+    leading_zeros: bool = False  # some first values are digits led by a zero, like "00417"
 
 
 def choose_candidates(
@@ -69,6 +70,8 @@ def choose_candidates(
     numbers = parse_numbers(sample, decimal=decimal, thousands=thousands)
     number_share = float(np.count_nonzero(~np.isnan(numbers))) / max(len(sample), 1)
     numeric = number_share > 0.05
+    # Codes such as "00417" read as numbers but lose their zeros: a sign of an identifier.
+    leading_zeros = bool(numeric and pc.any(pc.match_substring_regex(sample, r"^0\d")).as_py())
     formats = [] if number_share > 0.5 else candidate_formats(sample)
     distinct = len(pc.unique(present))
     labels = number_share <= 0.5 and not formats
@@ -79,6 +82,7 @@ def choose_candidates(
         date_formats=formats,
         text=True,
         number_share=number_share,
+        leading_zeros=leading_zeros,
     )
 
 
@@ -145,6 +149,14 @@ def decide_kind(
             return KindDecision("boolean")
     number_share = counts.numbers / present
     date_share = dates_parsed / present
+    distinct_share = distinct / present
+    if (
+        number_share >= majority
+        and candidates.leading_zeros
+        and distinct_share >= identifier_share
+        and (mean_length or 0) <= 40
+    ):
+        return KindDecision("identifier", {"leading_zeros": True, "numeric_share": number_share})
     if number_share >= majority and number_share >= date_share:
         return KindDecision("numeric", _mixed(number_share, counts.not_numbers, "numeric"))
     if date_share >= majority:
@@ -154,7 +166,6 @@ def decide_kind(
         evidence = {"numeric_share": number_share}
     if labels is not None and 0 < len(labels) <= 2 and labels <= BOOLEAN_WORDS:
         return KindDecision("boolean", evidence)
-    distinct_share = distinct / present
     if distinct_share >= identifier_share and not has_inner_space and (mean_length or 0) <= 40:
         return KindDecision("identifier", evidence)
     if distinct > categorical_max and distinct_share > 0.5:

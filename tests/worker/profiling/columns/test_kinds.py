@@ -60,3 +60,12 @@ def test_empty_column():
         has_inner_space=False,
     )
     assert decision.kind == "empty"
+
+
+def test_unique_codes_with_leading_zeros_are_identifiers():
+    codes = [f"{i:06d}" for i in range(300)]
+    decision = _decide(codes)
+    assert decision.kind == "identifier"
+    assert decision.evidence["leading_zeros"] is True
+    # The same numbers written without zeros stay numeric.
+    assert _decide([str(i) for i in range(300)]).kind == "numeric"
