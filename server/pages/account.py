@@ -18,7 +18,7 @@ from server.pages.templating import templates
 from server.security.access import SESSION_COOKIE
 from server.security.csrf import same_origin
 from server.security.sessions import clear_session_cookie, session_lifetime, set_session_cookie
-from server.security.signin import sign_in
+from server.security.signin import change_own_password, sign_in
 from server.store import accounts
 
 router = APIRouter(include_in_schema=False)
@@ -106,6 +106,42 @@ def account_page(request: Request, session: SessionDep, user: SignedInUser) -> H
         "account/account.html",
         {"user": user, "tokens": accounts.tokens_of(session, owner), "new_token": None},
     )
+
+
+@router.post("/account/password", response_class=HTMLResponse)
+def change_password_submit(
+    request: Request,
+    session: SessionDep,
+    settings: SettingsDep,
+    user: SignedInUser,
+    current: str = Form("", max_length=1000),
+    new: str = Form("", max_length=1000),
+) -> Response:
+    """Change one's own password; other sessions end, this browser stays signed in."""
+    refused = change_own_password(session, user.id, current, new, address=client_address(request))
+    owner = session.get(accounts.User, user.id)
+    if refused is not None:
+        session.commit()
+        return templates.TemplateResponse(
+            request,
+            "account/account.html",
+            {
+                "user": user,
+                "tokens": accounts.tokens_of(session, owner),
+                "new_token": None,
+                "password_message": refused,
+            },
+        )
+    secret = accounts.open_session(
+        session,
+        owner,
+        lifetime=session_lifetime(settings.security),
+        address=client_address(request),
+    )
+    session.commit()
+    response = RedirectResponse("/account?password=changed", status_code=303)
+    set_session_cookie(response, secret, settings.security)
+    return response
 
 
 @router.post("/account/tokens", response_class=HTMLResponse)

@@ -11,7 +11,13 @@ from datetime import timedelta
 
 from sqlalchemy.orm import Session
 
-from server.security.passwords import burn_time, verify_password
+from server.security.passwords import (
+    WeakPassword,
+    burn_time,
+    check_strength,
+    hash_password,
+    verify_password,
+)
 from server.security.throttle import retry_after
 from server.settings import SecuritySettings
 from server.store import accounts
@@ -90,3 +96,28 @@ def sign_in(
     accounts.clear_failed_sign_ins(session, name)
     accounts.audit(session, "sign-in", actor=user, address=address)
     return SignInOutcome(user)
+
+
+def change_own_password(
+    session: Session, user_id: int | None, current: str, new: str, *, address: str
+) -> str | None:
+    """Set a new password for the user who knows the current one; None when done, else why not.
+
+    Every session of the user ends (the caller opens a fresh one for the
+    browser that asked), so a stolen session does not outlive the change.
+    """
+    user = session.get(accounts.User, user_id) if user_id is not None else None
+    if user is None or not user.password_hash:
+        return "This account has no password to change."
+    ok, _ = verify_password(user.password_hash, current)
+    if not ok:
+        accounts.record_failed_sign_in(session, user.name, address)
+        return "The current password is not right."
+    try:
+        check_strength(new)
+    except WeakPassword as exc:
+        return f"The new password is refused: {exc}."
+    user.password_hash = hash_password(new)
+    accounts.close_user_sessions(session, user)
+    accounts.audit(session, "password-change", actor=user, address=address)
+    return None

@@ -15,7 +15,7 @@ from server.api.errors import ApiError
 from server.security.access import SESSION_COOKIE
 from server.security.csrf import csrf_token
 from server.security.sessions import clear_session_cookie, session_lifetime, set_session_cookie
-from server.security.signin import sign_in
+from server.security.signin import change_own_password, sign_in
 from server.store import accounts
 
 router = APIRouter(prefix="/auth", tags=["accounts"])
@@ -100,6 +100,42 @@ def api_sign_out(
         session.commit()
     response = Response(status_code=204)
     clear_session_cookie(response, settings.security)
+    return response
+
+
+class PasswordChange(BaseModel):
+    """The current password, to prove it is the owner, and the new one."""
+
+    current: str = Field(min_length=1, max_length=1000)
+    new: str = Field(min_length=1, max_length=1000)
+
+
+@router.put("/password", status_code=204)
+def change_password(
+    body: PasswordChange,
+    request: Request,
+    session: SessionDep,
+    settings: SettingsDep,
+    user: SignedInUser,
+) -> Response:
+    """Change one's own password; every session ends, this one starts again."""
+    outcome = change_own_password(
+        session, user.id, body.current, body.new, address=client_address(request)
+    )
+    if outcome is not None:
+        session.commit()
+        raise ApiError(422, outcome, code="password_refused")
+    response = Response(status_code=204)
+    if user.via == "session":
+        owner = session.get(accounts.User, user.id)
+        secret = accounts.open_session(
+            session,
+            owner,
+            lifetime=session_lifetime(settings.security),
+            address=client_address(request),
+        )
+        set_session_cookie(response, secret, settings.security)
+    session.commit()
     return response
 
 

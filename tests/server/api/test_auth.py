@@ -155,3 +155,35 @@ def test_sign_in_is_audited(anonymous_client, app_settings) -> None:
     actions = [e["action"] for e in events]
     assert actions[:2] == ["sign-in", "sign-in-failed"]
     assert events[0]["actor"] == "ada" and events[0]["address"] == "testclient"
+
+
+def test_changing_ones_password_ends_the_other_sessions(anonymous_client, app_settings) -> None:
+    from fastapi.testclient import TestClient
+
+    add_user(app_settings, "vera", "viewer")
+    other = TestClient(anonymous_client.app)
+    sign_in(other, "vera")
+    csrf = sign_in(anonymous_client, "vera")
+    new = "a brand new tide table"
+    wrong = anonymous_client.put(
+        "/api/v1/auth/password",
+        json={"current": "not it", "new": new},
+        headers={"X-CSRF-Token": csrf},
+    )
+    assert wrong.status_code == 422 and "not right" in wrong.json()["detail"]
+    weak = anonymous_client.put(
+        "/api/v1/auth/password",
+        json={"current": PASSWORD, "new": "short"},
+        headers={"X-CSRF-Token": csrf},
+    )
+    assert weak.status_code == 422 and "refused" in weak.json()["detail"]
+    done = anonymous_client.put(
+        "/api/v1/auth/password",
+        json={"current": PASSWORD, "new": new},
+        headers={"X-CSRF-Token": csrf},
+    )
+    assert done.status_code == 204
+    assert anonymous_client.get("/api/v1/auth/me").json()["name"] == "vera"  # this one goes on
+    assert other.get("/api/v1/auth/me").status_code == 401  # the other browser is out
+    answer = other.post("/api/v1/auth/sign-in", json={"name": "vera", "password": new})
+    assert answer.status_code == 200

@@ -30,6 +30,8 @@ OPEN = {
 # Changes to the caller's own things, which a viewer may make.
 SELF_SERVICE = {
     ("POST", "/api/v1/auth/sign-out"),
+    ("PUT", "/api/v1/auth/password"),
+    ("POST", "/account/password"),
     ("POST", "/api/v1/tokens"),
     ("DELETE", "/api/v1/tokens/{token_id}"),
     ("POST", "/sign-out"),

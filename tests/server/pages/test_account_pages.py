@@ -147,3 +147,18 @@ def test_a_reviewer_sees_no_admin_controls(client, app_settings) -> None:
     page = client.get(f"/intakes/{created['id']}", headers=reviewer).text
     assert "Data protection (admin)" not in page
     assert client.get("/admin/users", headers=reviewer).status_code == 403
+
+
+def test_the_account_page_changes_the_password(anonymous_client, app_settings) -> None:
+    add_user(app_settings, "vera", "viewer")
+    _form_sign_in(anonymous_client, "vera")
+    token = _csrf(anonymous_client)
+    wrong = anonymous_client.post(
+        "/account/password", data={"csrf_token": token, "current": "x", "new": "y" * 12}
+    )
+    assert "not right" in wrong.text
+    done = anonymous_client.post(
+        "/account/password",
+        data={"csrf_token": token, "current": PASSWORD, "new": "a brand new tide table"},
+    )
+    assert done.status_code == 200 and "Your password is changed" in done.text
