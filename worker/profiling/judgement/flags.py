@@ -377,6 +377,9 @@ def key_collisions(profile: dict[str, Any], t: FlagThresholds) -> list[Flag]:
             continue
         repeats = count - int(distinct)
         exact = bool(column.get("distinct_exact", True))
+        error = float(column.get("distinct_relative_error") or 0.0)
+        if not exact and repeats <= 3 * error * count:
+            continue  # within three standard errors of the distinct-count sketch
         name = column["name"]
         flags.append(
             make_flag(

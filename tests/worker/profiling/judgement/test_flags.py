@@ -195,6 +195,18 @@ def test_key_collisions() -> None:
     assert flag["evidence"]["repeats"] == 5
 
 
+def test_key_collisions_within_the_sketch_error_are_not_raised() -> None:
+    column = label_column("crate_id", [f"CR-{i:05d}" for i in range(N)], kind="identifier")
+    count = column["count"]
+    # A HyperLogLog estimate 0.5 % under the count, with 0.41 % standard error: within 3 errors.
+    column.update(distinct=int(count * 0.995), distinct_exact=False, distinct_relative_error=0.0041)
+    flags = raise_flags(_replace(clean_profile(), column), T)
+    assert not [f for f in flags if f["code"] == "uniqueness.key-collisions"]
+    column.update(distinct=int(count * 0.9))  # far beyond the sketch's error
+    flag = only(raise_flags(_replace(clean_profile(), column), T), "uniqueness.key-collisions")
+    assert flag["evidence"]["exact"] is False
+
+
 def test_label_variants() -> None:
     grades = [("A", "B", "C", "D")[i % 4] for i in range(N)]
     grades[:5] = ["a "] * 5  # 'A' written lower-case with a trailing space
