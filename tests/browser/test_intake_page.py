@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import csv
 import io
 from pathlib import Path
 
@@ -99,3 +100,23 @@ def test_intake_page_at_both_widths(page: Page, live_server: str, screenshot_dir
     )
     page.evaluate("window.scrollTo(0, 0)")
     screenshot_widths(page, screenshot_dir, "intake")
+
+
+def test_downloads_from_the_intake_page(page: Page, live_server: str) -> None:
+    sign_in(page, live_server)
+    page.goto(f"{live_server}/intakes/{intake_id(page, live_server, LANDINGS)}")
+    with page.expect_download() as caught:
+        page.get_by_role("link", name="column summary (CSV)").click()
+    summary = caught.value
+    assert summary.suggested_filename == f"{LANDINGS}.columns.csv"
+    rows = list(csv.reader(io.StringIO(Path(summary.path()).read_text(encoding="utf-8-sig"))))
+    assert rows[0][:3] == ["position", "name", "kind"]
+    assert [r[1] for r in rows[1:]] == list(demo_frame(LANDINGS).columns)
+    with page.expect_download() as caught:
+        page.get_by_role("link", name="standalone report (HTML)").click()
+    report = Path(caught.value.path()).read_text(encoding="utf-8")
+    assert "Tidewaiter intake report" in report and "price_per_kg" in report
+    profile = page.request.get(
+        f"{live_server}/api/v1/intakes/{intake_id(page, live_server, LANDINGS)}/profile"
+    )
+    assert profile.json()["dataset"]["rows"] == len(demo_frame(LANDINGS))
