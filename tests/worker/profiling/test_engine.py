@@ -230,3 +230,13 @@ def test_k_chunks_merged_equal_one_pass(rows, k, exact_bound):
     if a["s"]["labels"]:
         assert a["s"]["labels"]["top"] == b["s"]["labels"]["top"]
     assert a["dataset"]["duplicate_rows"] == b["dataset"]["duplicate_rows"]
+
+
+def test_columnar_copy_holds_every_row(tmp_path, planted):
+    import pyarrow.parquet as pq
+
+    copy = tmp_path / "copy.parquet"
+    profile = profile_file(planted, columnar_copy=copy)
+    table = pq.read_table(copy)
+    assert table.num_rows == profile["dataset"]["rows"] == 40
+    assert table.column_names == [column["name"] for column in profile["columns"]]
