@@ -95,3 +95,21 @@ def test_an_admin_deletes_an_intake_entirely(client, app_settings) -> None:
         assert session.get(Intake, intake_id) is None
     deletions = [e for e in client.get("/api/v1/audit").json() if e["action"] == "deletion"]
     assert deletions[0]["target"] == f"/api/v1/intakes/{intake_id}"
+
+
+def test_decisions_and_comments_are_audited_with_their_author(client, app_settings) -> None:
+    intake_id = _ready_intake(client)
+    reviewer = bearer(add_user(app_settings, "rui", "reviewer"))
+    decided = client.post(
+        f"/api/v1/intakes/{intake_id}/decisions", json={"verdict": "accepted"}, headers=reviewer
+    )
+    assert decided.status_code == 201, decided.text
+    thread = client.post(
+        f"/api/v1/intakes/{intake_id}/threads",
+        json={"body": "Are these addresses needed at all?", "column": "contact"},
+        headers=reviewer,
+    )
+    assert thread.status_code == 201, thread.text
+    events = client.get("/api/v1/audit").json()
+    mine = [(e["action"], e["actor"]) for e in events if e["actor"] == "rui"]
+    assert mine == [("comment", "rui"), ("decision", "rui")]
