@@ -67,8 +67,11 @@ def _user_add(args: argparse.Namespace) -> int:
         return 2
     try:
         with session_scope(get_settings()) as session:
-            accounts.create_user(
+            user = accounts.create_user(
                 session, args.name, args.role, password_hash=hash_password(password)
+            )
+            accounts.audit(
+                session, "user-change", target=f"user:{user.name}", detail={"added_by": "command"}
             )
     except accounts.AccountError as exc:
         print(f"refused: {exc}", file=sys.stderr)
@@ -117,6 +120,9 @@ def _token_add(args: argparse.Namespace) -> int:
             print(f"there is no active user {args.user}", file=sys.stderr)
             return 2
         _token, plaintext = accounts.create_token(session, user, args.name)
+        accounts.audit(
+            session, "token-change", target=f"user:{user.name}", detail={"added_by": "command"}
+        )
     print(plaintext)
     print(
         f"(an API token of {args.user}, role {user.role}; shown once. "

@@ -24,6 +24,8 @@ ACTIONS: tuple[tuple[str, str], ...] = (
     ("/sign-in", ""),
     ("/sign-out", ""),
     ("unmask", ""),
+    ("/password", ""),  # recorded by the route as password-change
+    ("/delete", "deletion"),
     ("/validate", ""),  # checks a document, changes nothing
     ("decision", "decision"),
     ("comment", "comment"),

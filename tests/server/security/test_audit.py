@@ -29,7 +29,13 @@ from server.security.audit import action_for
         ("DELETE", "/api/v1/intakes/3/file", "deletion"),
         ("POST", "/api/v1/auth/sign-in", None),  # recorded by the sign-in itself
         ("POST", "/sign-out", None),
-        ("PUT", "/api/v1/intakes/3/unmasking", None),  # recorded by the route, with more detail
+        ("PUT", "/api/v1/intakes/3/unmasking", None),
+        ("POST", "/intakes/3/unmasking", None),
+        ("POST", "/intakes/3/delete", "deletion"),
+        ("POST", "/account/password", None),
+        ("PUT", "/api/v1/auth/password", None),
+        ("POST", "/account/tokens", "token-change"),
+        ("POST", "/admin/users/4", "user-change"),  # recorded by the route, with more detail
     ],
 )
 def test_action_names(method: str, path: str, action: str | None) -> None:
