@@ -19,9 +19,25 @@
     return node ? JSON.parse(node.textContent) : null;
   }
 
+  // plotly.js may load after this script (pages load it with async, so the page is
+  // usable before the 4 MB bundle is parsed): drawing waits for it.
+  var waiting = [];
+  function whenPlotly(task) {
+    if (window.Plotly) task();
+    else waiting.push(task);
+  }
+  var bundle = document.getElementById("plotly-js");
+  if (bundle) {
+    bundle.addEventListener("load", function () {
+      waiting.splice(0).forEach(function (task) { task(); });
+    });
+  }
+
   function plot(element, figure) {
     element.dataset.state = "drawn";
-    return window.Plotly.newPlot(element, figure.data, figure.layout, CONFIG);
+    whenPlotly(function () {
+      window.Plotly.newPlot(element, figure.data, figure.layout, CONFIG);
+    });
   }
 
   var BATCH = 25;
@@ -95,7 +111,7 @@
       element.hidden = element.dataset.choice !== select.value;
       if (!element.hidden) {
         element.querySelectorAll("[data-figure][data-state='drawn']").forEach(function (fig) {
-          window.Plotly.Plots.resize(fig);
+          whenPlotly(function () { window.Plotly.Plots.resize(fig); });
         });
       }
     });
