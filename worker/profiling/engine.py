@@ -163,14 +163,21 @@ class TableProfiler:
             self.columns[name].update(column, prepared)
             return name, prepared
 
+        # Duplicate rows need only the raw cells: they are hashed beside the columns.
+        duplicates = None
+        if self.pool is not None:
+            duplicates = self.pool.submit(self.duplicates.update, assemble_batch(raw, offset, {}))
         prepared_columns = dict(self._map(one_column, self.column_names))
         batch = assemble_batch(raw, offset, prepared_columns)
         if self.relations is None:
             self.relations = RelationsState(
                 self._relation_numeric(), self._relation_labels(), self.options
             )
-        across = [self.relations.update, self.duplicates.update]
-        list(self._map(lambda update: update(batch), across))
+        self.relations.update(batch)
+        if duplicates is None:
+            self.duplicates.update(batch)
+        else:
+            duplicates.result()
         self.rows += raw.num_rows
 
     def _map(self, function: Callable[[Any], Any], items: list[Any]) -> Iterator[Any]:

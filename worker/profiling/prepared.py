@@ -87,6 +87,15 @@ def to_numpy_bool(mask: pa.Array | pa.ChunkedArray) -> np.ndarray:
     return mask.fill_null(False).to_numpy(zero_copy_only=False)
 
 
+def plain_number_text(text: pa.Array, decimal: str, thousands: str | None) -> pa.Array:
+    """Text with the thousands separator removed and the decimal mark made a point."""
+    if thousands:
+        text = pc.replace_substring(text, thousands, "")
+    if decimal != ".":
+        text = pc.replace_substring(text, decimal, ".")
+    return text
+
+
 def parse_numbers(
     trimmed: pa.Array, *, decimal: str = ".", thousands: str | None = None
 ) -> np.ndarray:
@@ -95,11 +104,7 @@ def parse_numbers(
     The fast path is Arrow's cast; when one value fails it, polars' lenient
     cast gives null for the values that are not numbers.
     """
-    text = trimmed
-    if thousands:
-        text = pc.replace_substring(text, thousands, "")
-    if decimal != ".":
-        text = pc.replace_substring(text, decimal, ".")
+    text = plain_number_text(trimmed, decimal, thousands)
     try:
         parsed = pc.cast(text, pa.float64())
     except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
@@ -176,11 +181,7 @@ def _clean_numbers(raw: pa.Array, plan: BatchPlan) -> np.ndarray | None:
     This fast path skips trimming and token checks: Arrow's cast refuses blanks,
     whitespace and words, so a successful cast means there are none.
     """
-    text = raw
-    if plan.thousands:
-        text = pc.replace_substring(text, plan.thousands, "")
-    if plan.decimal != ".":
-        text = pc.replace_substring(text, plan.decimal, ".")
+    text = plain_number_text(raw, plan.decimal, plan.thousands)
     try:
         parsed = pc.cast(text, pa.float64())
     except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
