@@ -38,8 +38,12 @@ def test_comparison_page_sets_two_intakes_side_by_side(
     expect(page.locator("#supplier-table tbody tr")).to_have_count(3)  # the demo's suppliers
     first = page.get_by_label("First (compared against)")
     second = page.get_by_label("Second")
-    first.select_option(label=first.locator("option", has_text="brannock-landings-2031-w10").inner_text())
-    second.select_option(label=second.locator("option", has_text="brannock-landings-2031-w11").inner_text())
+    first.select_option(
+        label=first.locator("option", has_text="brannock-landings-2031-w10").inner_text()
+    )
+    second.select_option(
+        label=second.locator("option", has_text="brannock-landings-2031-w11").inner_text()
+    )
     page.get_by_role("button", name="Compare").click()
     sides = page.locator("#sides .side")
     expect(sides).to_have_count(2)
