@@ -43,6 +43,11 @@ class SecuritySettings(BaseModel):
         description="Stored files older than this are purged (profiles are kept); "
         "empty keeps files until an admin deletes them.",
     )
+    preview_rows_limit: int = Field(
+        200,
+        description="Most rows one preview of an intake's delivered rows may ask for; more "
+        "is refused with a plain error (common practice: a screenful, not a copy of the file).",
+    )
 
 
 class Settings(BaseSettings):

@@ -15,6 +15,7 @@ from server.api.routes import (
     judgement,
     privacy,
     queries,
+    rows,
     rules,
     suppliers,
     tokens,
@@ -39,6 +40,7 @@ api_router.include_router(history.router)
 api_router.include_router(users.router)
 api_router.include_router(audit.router)
 api_router.include_router(privacy.router)
+api_router.include_router(rows.router)
 
 # Sign-in must be open and a viewer may sign out or manage their own tokens: these
 # routes take their caller from ``signed_in_user`` themselves.
