@@ -120,3 +120,18 @@ def test_downloads_from_the_intake_page(page: Page, live_server: str) -> None:
         f"{live_server}/api/v1/intakes/{intake_id(page, live_server, LANDINGS)}/profile"
     )
     assert profile.json()["dataset"]["rows"] == len(demo_frame(LANDINGS))
+
+
+def test_choosing_another_baseline_compares_against_it(page: Page, live_server: str) -> None:
+    sign_in(page, live_server)
+    april = intake_id(page, live_server, "gullwick-2031-04.csv")
+    page.goto(f"{live_server}/intakes/{intake_id(page, live_server, 'gullwick-2031-05.csv')}")
+    changes = page.locator("#changes")
+    # By default the baseline is the last accepted delivery: March (April was rejected).
+    expect(changes).to_contain_text("gullwick-2031-03.csv")
+    page.get_by_label("Compare with").select_option(str(april))
+    changes.get_by_role("button", name="Compare").click()
+    expect(changes.get_by_role("link", name=f"#{april} gullwick-2031-04.csv")).to_be_visible()
+    drift = page.locator("[data-figure=fig-drift]")
+    drift.scroll_into_view_if_needed()
+    expect(drift.locator(".main-svg").first).to_be_attached()
