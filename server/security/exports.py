@@ -12,7 +12,7 @@ single-quote prefix).
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Iterator
+from collections.abc import Iterable
 from typing import Any
 
 FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
@@ -28,9 +28,3 @@ def neutralise_cell(value: Any) -> Any:
 def neutralise_row(row: Iterable[Any]) -> list[Any]:
     """Every cell of one row, neutralised."""
     return [neutralise_cell(value) for value in row]
-
-
-def neutralise_rows(rows: Iterable[Iterable[Any]]) -> Iterator[list[Any]]:
-    """Every row of an export, neutralised (lazily, for streamed exports)."""
-    for row in rows:
-        yield neutralise_row(row)

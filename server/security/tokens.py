@@ -11,7 +11,6 @@ may be stored with an approved hash); Python ``secrets`` (PEP 506).
 from __future__ import annotations
 
 import hashlib
-import hmac
 import secrets
 
 API_TOKEN_PREFIX = "tw_"
@@ -31,8 +30,3 @@ def new_api_token() -> str:
 def digest(secret: str) -> str:
     """The hex SHA-256 digest under which a session or API token is stored."""
     return hashlib.sha256(secret.encode("utf-8")).hexdigest()
-
-
-def same(a: str, b: str) -> bool:
-    """Compare two secrets in constant time."""
-    return hmac.compare_digest(a.encode("utf-8"), b.encode("utf-8"))

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import hashlib
 
-from server.security.tokens import API_TOKEN_PREFIX, digest, new_api_token, new_secret, same
+from server.security.tokens import API_TOKEN_PREFIX, digest, new_api_token, new_secret
 
 
 def test_digest_is_sha256_hex() -> None:
@@ -22,9 +22,3 @@ def test_secrets_are_long_and_distinct() -> None:
 def test_api_tokens_carry_the_prefix() -> None:
     token = new_api_token()
     assert token.startswith(API_TOKEN_PREFIX) and len(token) > 40
-
-
-def test_same_compares_exactly() -> None:
-    assert same("abc", "abc")
-    assert not same("abc", "abd")
-    assert not same("abc", "abcd")
