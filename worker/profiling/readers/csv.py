@@ -183,21 +183,36 @@ class CsvSource(TableSource):
     def _check_unclosed_quote(self, last: pa.RecordBatch) -> None:
         """Report a quote never closed: it swallows the file's end into one value.
 
-        A properly quoted value ends where its quote closes; one that runs to
-        the end of the file keeps the final line break, which a closed value
-        almost never does.
+        Only a value in the last column can run to the end of the file
+        unnoticed (elsewhere the row lacks fields and is reported as broken).
+        Such a value keeps the file's final line break, and the file does not
+        end with a closing quote, as it would if the value were closed.
         """
-        for name, column in zip(self.column_names, last.columns, strict=True):
-            value = column[last.num_rows - 1].as_py()
-            if value and "\n" in value and value.endswith("\n"):
-                start = value.split("\n")[0][:40]
-                self._errors.add(
-                    None,
-                    f"a quote opened in column {name} of the last row (data row "
-                    f"{self._rows_read}) is never closed; "
-                    f"the rest of the file, from {start!r}, was read as one value",
-                )
+        value = last.column(last.num_columns - 1)[last.num_rows - 1].as_py()
+        if not value or "\n" not in value or not value.endswith("\n"):
+            return
+        ending = self._file_ending()
+        if ending is None:  # compressed: judge from the value alone
+            swallowed_rows = any(self.info.delimiter in line for line in value.split("\n")[1:])
+            if not swallowed_rows:
                 return
+        elif ending.rstrip("\r\n").endswith(self.info.quotechar or '"'):
+            return
+        start = value.split("\n")[0][:40]
+        self._errors.add(
+            None,
+            f"a quote opened in column {self.column_names[-1]} of the last row (data row "
+            f"{self._rows_read}) is never closed; "
+            f"the rest of the file, from {start!r}, was read as one value",
+        )
+
+    def _file_ending(self) -> str | None:
+        """The last few characters of a plain file, or None for a compressed one."""
+        if self._compression is not None:
+            return None
+        with open(self.path, "rb") as file:
+            file.seek(max(0, self.total_bytes - 16))
+            return file.read().decode(self.info.encoding or "utf-8", errors="ignore")
 
     def _count_consumed(self, batch: pa.RecordBatch) -> None:
         """Estimate the file bytes behind the rows handed out so far (for progress)."""
