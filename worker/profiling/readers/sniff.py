@@ -67,8 +67,9 @@ def sniff_dialect(text: str, *, complete: bool) -> Dialect:
 def preamble_lines(text: str, dialect: Dialect, *, limit: int = 20) -> int:
     """How many physical lines before the table a person wrote (a title, an export note).
 
-    They are the leading lines with fewer fields than most records of the
-    sample (blank lines among them included); 0 when the table starts at once.
+    They are the leading lines with at most half the fields most records of
+    the sample have (blank lines among them included); 0 when the table
+    starts at once. A header that is merely short is not a preamble.
     """
     lines = text.splitlines()
     records = split_records(
@@ -86,7 +87,7 @@ def preamble_lines(text: str, dialect: Dialect, *, limit: int = 20) -> int:
         if not line.strip():
             continue
         fields = split_records([line], dialect.delimiter, dialect.quotechar)
-        if fields and len(fields[0]) >= modal:
+        if fields and len(fields[0]) * 2 > modal:
             return index
     return 0
 

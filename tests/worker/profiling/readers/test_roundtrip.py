@@ -62,3 +62,31 @@ def test_written_cells_read_back_unchanged(
         {name: (value or None) for name, value in zip(header, row, strict=True)} for row in rows
     ]
     assert read == expected
+
+
+@settings(
+    max_examples=60, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(kinds=st.lists(st.sampled_from(["row", "multiline", "blank", "short", "long"]), max_size=60))
+def test_broken_rows_are_reported_at_the_lines_they_were_planted(
+    tmp_path: Path, kinds: list[str]
+) -> None:
+    # Truth by construction: each kind adds known physical lines.
+    lines = ["a,b,c"]
+    planted = []
+    for number, kind in enumerate(kinds):
+        if kind == "row":
+            lines.append(f"{number},x,y")
+        elif kind == "multiline":
+            lines.extend([f'{number},"first', 'second",y'])
+        elif kind == "blank":
+            lines.append("")
+        else:
+            lines.append(f"{number},x" if kind == "short" else f"{number},x,y,z")
+            planted.append(len(lines))
+    path = tmp_path / "planted.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with open_table(path) as source:
+        rows = sum(batch.num_rows for batch in source.batches())
+        assert [error["line"] for error in source.parse_errors] == planted
+    assert rows == kinds.count("row") + kinds.count("multiline")
