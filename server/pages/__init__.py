@@ -16,6 +16,8 @@ from fastapi.staticfiles import StaticFiles
 from server.api.deps import current_user
 from server.pages.account import router as account_router
 from server.pages.admin import router as admin_router
+from server.pages.api_docs import mount_swagger_files
+from server.pages.api_docs import router as api_docs_router
 from server.pages.downloads import router as downloads_router
 from server.pages.intakes import router as intakes_router
 from server.pages.suppliers import router as suppliers_router
@@ -51,6 +53,8 @@ def install_pages(app: FastAPI) -> None:
     app.include_router(account_router)
     app.include_router(intakes_router, dependencies=[Depends(current_user)])
     app.include_router(admin_router, dependencies=[Depends(current_user)])
+    app.include_router(api_docs_router, dependencies=[Depends(current_user)])
+    mount_swagger_files(app)
     app.include_router(downloads_router, dependencies=[Depends(current_user)])
     app.include_router(suppliers_router, dependencies=[Depends(current_user)])
     app.mount("/static", StaticFiles(directory=WEB_DIR / "static", check_dir=False), name="static")

@@ -34,7 +34,16 @@ def safe_text(value: object, limit: int | None = None) -> str:
     text = "(missing)" if value is None else str(value)
     if limit is not None and len(text) > limit:
         text = text[: limit - 1] + "…"
-    return html.escape(text, quote=False)
+    return html.escape(show_edges(text), quote=False)
+
+
+def show_edges(text: str) -> str:
+    """Leading and trailing spaces made visible as ␣, so "ok" and "ok " read as two labels."""
+    core = text.strip(" ")
+    if core == text or not core:
+        return text
+    start = text.index(core[0])
+    return "␣" * start + core + "␣" * (len(text) - start - len(core))
 
 
 def finite(value: object) -> float | None:
@@ -84,6 +93,13 @@ def base_layout(title: str | None = None, *, height: int = 320, **extra: Any) ->
         }
     layout.update(extra)
     return layout
+
+
+def top_legend(layout: dict[str, Any]) -> None:
+    """Show the legend in a band above the plot area, clear of the data."""
+    layout["showlegend"] = True
+    layout["legend"] = {"orientation": "h", "x": 0, "y": 1.0, "yanchor": "bottom"}
+    layout["margin"]["t"] = max(layout["margin"]["t"], 40)
 
 
 def axis(title: str | None = None, **extra: Any) -> dict[str, Any]:

@@ -19,6 +19,7 @@ from server.pages.figures.base import (
     finite,
     finite_list,
     safe_text,
+    top_legend,
 )
 
 PSI_MODERATE = 0.1
@@ -138,8 +139,7 @@ def drift_numeric_figure(baseline: dict[str, Any], target: dict[str, Any]) -> Fi
     if len(data) < 2:
         return None
     layout = base_layout(height=260)
-    layout["showlegend"] = True
-    layout["legend"] = {"orientation": "h", "y": 1.12, "x": 0}
+    top_legend(layout)
     layout["xaxis"] = axis(str(target.get("name", "")))
     layout["yaxis"] = axis("density", rangemode="tozero")
     return {"data": data, "layout": layout}
@@ -183,8 +183,7 @@ def drift_labels_figure(baseline: dict[str, Any], target: dict[str, Any]) -> Fig
         )
     ]
     layout = base_layout(height=max(180, 80 + 34 * len(order)), barmode="group")
-    layout["showlegend"] = True
-    layout["legend"] = {"orientation": "h", "y": 1.08, "x": 0}
+    top_legend(layout)
     layout["xaxis"] = axis("share of rows", tickformat=".0%", rangemode="tozero")
     layout["yaxis"] = axis(
         tickmode="array",

@@ -5,7 +5,7 @@ from __future__ import annotations
 from typing import Any
 
 from server.pages import palette
-from server.pages.figures.base import Figure, axis, base_layout, finite, safe_text
+from server.pages.figures.base import Figure, axis, base_layout, finite, safe_text, top_legend
 
 
 def _when(entry: dict[str, Any]) -> str:
@@ -43,8 +43,7 @@ def timeline_figure(entries: list[dict[str, Any]]) -> Figure | None:
         },
     ]
     layout = base_layout(height=300)
-    layout["showlegend"] = True
-    layout["legend"] = {"orientation": "h", "y": 1.12, "x": 0}
+    top_legend(layout)
     layout["xaxis"] = axis("delivered", type="date")
     layout["yaxis"] = axis("overall score", range=[0, 101])
     layout["yaxis2"] = axis(
@@ -72,6 +71,7 @@ def column_history_figure(points: list[dict[str, Any]], column: str) -> Figure |
                 "y": [p.get("max") for p in points],
                 "line": {"width": 0},
                 "hoverinfo": "skip",
+                "showlegend": False,
             },
             {
                 "type": "scatter",
@@ -127,13 +127,18 @@ def column_history_figure(points: list[dict[str, Any]], column: str) -> Figure |
             }
         )
     layout = base_layout(height=300)
-    layout["showlegend"] = True
-    layout["legend"] = {"orientation": "h", "y": 1.15, "x": 0}
+    top_legend(layout)
     layout["xaxis"] = axis("delivered", type="date")
     if numeric:
         layout["yaxis"] = axis(column)
         layout["yaxis2"] = axis(
-            "share", overlaying="y", side="right", range=[0, 1], tickformat=".0%", showgrid=False
+            "share",
+            overlaying="y",
+            side="right",
+            range=[0, 1],
+            dtick=0.25,
+            tickformat=".0%",
+            showgrid=False,
         )
         layout["margin"]["r"] = 64
     else:

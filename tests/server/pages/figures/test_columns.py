@@ -120,3 +120,9 @@ def test_datetime_figure_spans_the_stored_periods() -> None:
 
 def test_column_figure_has_nothing_for_text_columns() -> None:
     assert column_figure({"name": "note", "kind": "text", "text": {"min_length": 1}}) is None
+
+
+def test_labels_that_differ_by_edge_spaces_read_apart() -> None:
+    values = pd.Series(["ok"] * 5 + ["ok "] * 3 + [" ok"] * 2)
+    ticks = labels_figure(label_column("status", values))["layout"]["yaxis"]["ticktext"]
+    assert ticks == ["ok", "ok␣", "␣ok"]
