@@ -14,7 +14,7 @@ import os
 import threading
 import time
 from collections.abc import Callable, Iterator
-from concurrent.futures import Executor, ThreadPoolExecutor
+from concurrent.futures import Executor, Future, ThreadPoolExecutor
 from pathlib import Path
 from typing import Any
 
@@ -25,7 +25,13 @@ from worker.profiling.columns.column import ColumnState
 from worker.profiling.errors import ProfileError
 from worker.profiling.limits import check_cells, check_columns
 from worker.profiling.options import ProfileOptions
-from worker.profiling.prepared import BatchPlan, PreparedColumn, assemble_batch, prepare_column
+from worker.profiling.prepared import (
+    BatchPlan,
+    PreparedBatch,
+    PreparedColumn,
+    assemble_batch,
+    prepare_column,
+)
 from worker.profiling.readers import open_table
 from worker.profiling.relations.duplicates import DuplicateState
 from worker.profiling.relations.state import RelationsState
@@ -121,6 +127,7 @@ class TableProfiler:
         self.relations: RelationsState | None = None
         self.duplicates = DuplicateState(self.column_names, options)
         self.first_row = first_row
+        self._pending: list[Future[None]] = []
         self.rows = 0
         self._plan = self._make_plan()
 
@@ -163,22 +170,34 @@ class TableProfiler:
             self.columns[name].update(column, prepared)
             return name, prepared
 
-        # Duplicate rows need only the raw cells: they are hashed beside the columns.
-        duplicates = None
-        if self.pool is not None:
-            duplicates = self.pool.submit(self.duplicates.update, assemble_batch(raw, offset, {}))
         prepared_columns = dict(self._map(one_column, self.column_names))
         batch = assemble_batch(raw, offset, prepared_columns)
         if self.relations is None:
             self.relations = RelationsState(
                 self._relation_numeric(), self._relation_labels(), self.options
             )
-        self.relations.update(batch)
-        if duplicates is None:
-            self.duplicates.update(batch)
-        else:
-            duplicates.result()
+        self._across(batch)
         self.rows += raw.num_rows
+
+    def _across(self, batch: PreparedBatch) -> None:
+        """Update the across-column states with a batch. With a pool, they run while the
+        next batch's columns are profiled; each state still takes its batches in order."""
+        assert self.relations is not None
+        if self.pool is None:
+            self.relations.update(batch)
+            self.duplicates.update(batch)
+            return
+        self.wait()
+        self._pending = [
+            self.pool.submit(self.relations.update, batch),
+            self.pool.submit(self.duplicates.update, batch),
+        ]
+
+    def wait(self) -> None:
+        """Wait for the across-column updates still running (errors surface here)."""
+        pending, self._pending = self._pending, []
+        for future in pending:
+            future.result()
 
     def _map(self, function: Callable[[Any], Any], items: list[Any]) -> Iterator[Any]:
         if self.pool is None:
@@ -200,6 +219,8 @@ class TableProfiler:
 
     def merge(self, other: TableProfiler) -> TableProfiler:
         """Combine with a profiler of the rows that follow this one's (neither is changed)."""
+        self.wait()
+        other.wait()
         out = copy.copy(self)
         out.columns = {
             name: state.merge(other.columns[name]) for name, state in self.columns.items()
@@ -224,6 +245,7 @@ class TableProfiler:
 
     def finalize(self) -> dict[str, Any]:
         """The profile document without its ``source`` section and judgement."""
+        self.wait()
         columns = [state.finalize() for state in self.columns.values()]
         kinds = {column["name"]: column["kind"] for column in columns}
         relations: dict[str, Any] = {
