@@ -28,6 +28,7 @@ from worker.profiling.readers.sniff import looks_like_data
 from worker.profiling.readers.source import SourceInfo, TableSource
 
 _DOCTYPE_SCAN_BYTES = 64 * 1024
+_SNIFF_ROWS = 50  # rows looked at to find where the table starts
 
 
 def is_xlsx(path: Path) -> bool:
@@ -78,6 +79,8 @@ class XlsxSource(TableSource):
             raise ProfileError(f"the workbook has no sheet {sheet!r}; it has {', '.join(sheets)}")
         self._sheet = self._book[chosen]
         self._expected_rows = self._sheet.max_row or 0
+        self._start_row = 1
+        self._widest = 0
         first = self._first_row()
         header = bool(first) and not any(
             cell is not None and (not isinstance(cell, str) or looks_like_data(cell, "."))
@@ -86,20 +89,42 @@ class XlsxSource(TableSource):
         if header:
             self.column_names, fixes = unique_names(first)
             for fix in fixes:
-                self._errors.add(1, fix)
+                self._errors.add(self._start_row, fix)
         else:
-            self.column_names = numbered_names(len(first))
+            self.column_names = numbered_names(self._widest)
         self._header = header
         self.info = SourceInfo(format="xlsx", header=header, sheets=sheets, sheet=chosen)
 
     def _first_row(self) -> list[Any]:
-        for row in self._sheet.iter_rows(values_only=True):
+        """The header candidate: the first row not part of a title block above the table.
+
+        Rows above the table (a title, an export note) hold at most half the
+        cells most of the first rows hold; they are skipped and reported.
+        """
+        leading: list[tuple[int, list[Any]]] = []
+        for number, row in enumerate(self._sheet.iter_rows(values_only=True), start=1):
             values = list(row)
             while values and values[-1] is None:
                 values.pop()
             if values:
-                return values
-        raise ProfileError(f"the sheet {self._sheet.title!r} is empty")
+                leading.append((number, values))
+            if len(leading) >= _SNIFF_ROWS:
+                break
+        if not leading:
+            raise ProfileError(f"the sheet {self._sheet.title!r} is empty")
+        widths = [len(values) for _, values in leading]
+        modal = max(set(widths), key=widths.count)
+        self._widest = max(widths)
+        # A row of the modal width always qualifies, so one is found.
+        index = next(i for i, width in enumerate(widths) if width * 2 > modal)
+        self._start_row, values = leading[index]
+        if index:
+            self._errors.add(
+                1,
+                f"the {self._start_row - 1} row(s) above the table were skipped, "
+                f"starting {leading[0][1][0]!r}",
+            )
+        return values
 
     def batches(self) -> Iterator[pa.RecordBatch]:
         width = len(self.column_names)
@@ -107,6 +132,8 @@ class XlsxSource(TableSource):
         skipped_header = not self._header
         try:
             for number, row in enumerate(self._sheet.iter_rows(values_only=True), start=1):
+                if number < self._start_row:
+                    continue
                 cells = [_cell_text(value) for value in row]
                 while cells and cells[-1] is None:
                     cells.pop()

@@ -157,3 +157,31 @@ def test_xlsx_that_inflates_like_a_bomb_is_refused(tmp_path: Path) -> None:
             target.writestr(info.filename, data)
     with pytest.raises(ProfileError, match="decompression bomb"):
         open_table(padded)
+
+
+def test_xlsx_title_rows_above_the_table_are_skipped_and_reported(tmp_path: Path) -> None:
+    path = tmp_path / "titled.xlsx"
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(["Harbour office: crates landed in March"])
+    sheet.append([])
+    sheet.append(["crate", "dock", "weight"])
+    sheet.append(["C-1", "Nord", 12])
+    sheet.append(["C-2", "Süd", 7.5])
+    book.save(path)
+    source, table = _table(path)
+    assert source.column_names == ["crate", "dock", "weight"]
+    assert table.column("weight").to_pylist() == ["12", "7.5"]
+    assert "2 row(s) above the table" in source.parse_errors[0]["message"]
+
+
+def test_xlsx_without_header_gets_numbered_columns(tmp_path: Path) -> None:
+    path = tmp_path / "bare.xlsx"
+    book = openpyxl.Workbook()
+    for row in ([1, 2.5, "x"], [2, 3.5, "y"], [3, 4.5]):
+        book.active.append(row)
+    book.save(path)
+    source, table = _table(path)
+    assert source.info.header is False
+    assert source.column_names == ["column_1", "column_2", "column_3"]
+    assert table.column("column_3").to_pylist() == ["x", "y", None]
