@@ -76,3 +76,20 @@ def test_bad_questions_say_what_is_wrong(client: TestClient) -> None:
     assert client.delete(f"/api/v1/intakes/{intake}/file").status_code == 204
     gone = client.get(f"/api/v1/intakes/{intake}/labels", params={"column": "berth"})
     assert gone.status_code == 410 and gone.json()["code"] == "gone"
+
+
+def test_personal_columns_answer_only_once_unmasked(client: TestClient) -> None:
+    rows = 60
+    frame = pd.DataFrame(
+        {
+            "skipper_email": [f"skipper{i % 7}@example.org" for i in range(rows)],
+            "berth": ["north", "south", "east"] * (rows // 3),
+        }
+    )
+    intake = profiled(client, frame.to_csv(index=False).encode())
+    answer = client.get(
+        f"/api/v1/intakes/{intake}/crosstab", params={"a": "skipper_email", "b": "berth"}
+    )
+    assert answer.status_code == 403 and answer.json()["code"] == "masked"
+    allowed = client.get(f"/api/v1/intakes/{intake}/labels", params={"column": "berth"})
+    assert allowed.status_code == 200
