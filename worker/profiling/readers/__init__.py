@@ -9,6 +9,7 @@ cannot be read at all raises ``ProfileError`` with one plain reason.
 from __future__ import annotations
 
 from pathlib import Path
+from typing import BinaryIO
 
 from worker.profiling.errors import ProfileError
 from worker.profiling.options import ProfileOptions
@@ -44,17 +45,14 @@ def open_table(
     if compression is None:
         with open(path, "rb") as file:
             head = file.read(options.sniff_sample_bytes)
-            tail = b""
-            if size > 2 * options.sniff_sample_bytes:
-                file.seek(size - options.sniff_sample_bytes // 4)
-                tail = file.read()
+            probes = _probes(file, size, options.sniff_sample_bytes)
         complete = len(head) == size
     else:
         with open_decompressed(path, compression, options) as stream:
             head = read_head(stream, options.sniff_sample_bytes + 1)
         complete = len(head) <= options.sniff_sample_bytes
         head = head[: options.sniff_sample_bytes]
-        tail = b""
+        probes = ()
     kind = format_of(head)
     if kind == "parquet":
         if compression is not None:
@@ -63,5 +61,17 @@ def open_table(
     if kind == "jsonl":
         return JsonlSource(path, options, compression=compression)
     return CsvSource(
-        path, options, head=head, complete=complete, compression=compression, tail=tail
+        path, options, head=head, complete=complete, compression=compression, probes=probes
     )
+
+
+def _probes(file: BinaryIO, size: int, sample: int) -> tuple[bytes, ...]:
+    """Samples from the middle and the end of a large plain file, for the encoding check."""
+    if size <= 2 * sample:
+        return ()
+    probe = sample // 4
+    found = []
+    for offset in (size // 2, size - probe):
+        file.seek(offset)
+        found.append(file.read(probe))
+    return tuple(found)

@@ -41,7 +41,7 @@ class CsvSource(TableSource):
         head: bytes,
         complete: bool,
         compression: str | None = None,
-        tail: bytes = b"",
+        probes: tuple[bytes, ...] = (),
     ) -> None:
         super().__init__(path, options.parse_error_limit)
         self._options = options
@@ -50,7 +50,7 @@ class CsvSource(TableSource):
         self._rows_read = 0
         self._pending: list[tuple[int | None, str, str]] = []
         self._overflow: list[int] = []
-        encoding = _encoding_of(head, tail)
+        encoding = _encoding_of(head, probes)
         text = decode_sample(head, encoding).lstrip("\ufeff")
         # Bytes on disk per byte of decoded text, for the progress estimate.
         decoded = len(text.encode("utf-8")) or 1
@@ -302,11 +302,17 @@ def _wait_until_released(held: list[weakref.ref[Any]], timeout: float = 2.0) -> 
         time.sleep(0.001)
 
 
-def _encoding_of(head: bytes, tail: bytes) -> str:
-    """The encoding from the head, unless the tail shows UTF-8 was only a good start."""
+def _encoding_of(head: bytes, probes: tuple[bytes, ...]) -> str:
+    """The encoding from the head, unless a probe from further in shows UTF-8 was only a start.
+
+    ``probes`` are samples from the middle and the end of a plain file; they
+    may begin and end inside a character.
+    """
     encoding = detect_encoding(head)
-    if encoding == "utf-8" and tail:
-        tail = tail.lstrip(bytes(range(0x80, 0xC0)))
-        if detect_encoding(tail) != "utf-8":
-            return detect_encoding(head + b"\n" + tail)
+    if encoding != "utf-8":
+        return encoding
+    for probe in probes:
+        probe = probe.lstrip(bytes(range(0x80, 0xC0)))
+        if probe and detect_encoding(probe) != "utf-8":
+            return detect_encoding(head + b"\n" + probe)
     return encoding

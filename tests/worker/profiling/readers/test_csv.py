@@ -204,7 +204,8 @@ def test_header_only_file_has_columns_and_no_rows(tmp_path: Path) -> None:
 def test_invalid_utf8_past_the_samples_is_a_plain_error(tmp_path: Path) -> None:
     body = "".join(f"{n},plain\n" for n in range(60_000))
     path = tmp_path / "d.csv"
-    path.write_bytes(b"id,label\n" + body.encode() + b"1,caf\xe9\n" + body.encode())
+    # The bad byte sits a quarter in: past the head, before the middle and end probes.
+    path.write_bytes(b"id,label\n" + body.encode() + b"1,caf\xe9\n" + 3 * body.encode())
     with (
         pytest.raises(ProfileError, match="cannot be read past row"),
         open_table(path, options=ProfileOptions(sniff_sample_bytes=8192)) as source,
@@ -220,3 +221,11 @@ def test_preamble_lines_before_the_table_are_skipped_and_reported(tmp_path: Path
     assert table.column("name").to_pylist() == ["x", "z"]
     assert "3 line(s) before the table" in source.parse_errors[0]["message"]
     assert source.parse_errors[1]["line"] == 6  # by construction: "y,2,3" is line 6
+
+
+def test_legacy_bytes_only_in_the_middle_are_found(tmp_path: Path) -> None:
+    plain = "".join(f"{n},plain\n" for n in range(40_000))
+    text = "id,label\n" + plain + "".join(f"{n},Zürich\n" for n in range(3_000)) + plain
+    source, table = _read(_write(tmp_path, text, "cp1252"), sniff_sample_bytes=16 * 1024)
+    assert source.info.encoding == "cp1252"
+    assert "Zürich" in table.column("label").to_pylist()
