@@ -240,7 +240,10 @@ class CsvSource(TableSource):
                 "(a quote that is never closed?)"
             )
         elif "invalid UTF8" in reason or isinstance(exc, UnicodeDecodeError):
-            reason = f"its text is not valid {self.info.encoding} throughout"
+            reason = (
+                f"its text is not valid {self.info.encoding} throughout "
+                "(the encoding changes inside the file; save it as UTF-8 and send it again)"
+            )
         return ProfileError(f"the file cannot be read past row {self._rows_read + 1}: {reason}")
 
     def _settle_errors(self) -> None:
