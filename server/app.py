@@ -28,6 +28,9 @@ def create_app(settings: Settings | None = None) -> FastAPI:
             stop_background(settings, background)
 
     app = FastAPI(
+        # /docs is served from this host by server.pages.api_docs (no CDN, no inline script).
+        docs_url=None,
+        redoc_url=None,
         title="Tidewaiter",
         summary="Intake desk for partner data files: upload, profile, score, discuss, decide.",
         version="0.1.0",

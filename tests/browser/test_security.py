@@ -134,3 +134,13 @@ def test_tokens_are_shown_once_and_sign_out_ends_the_session(page: Page, live_se
     page.wait_for_url(f"{live_server}/sign-in")
     page.goto(f"{live_server}/")
     expect(page).to_have_url(re.compile(r"/sign-in"))
+
+
+def test_the_api_description_draws_from_this_host_only(page: Page, live_server: str) -> None:
+    sign_in(page, live_server, "demo-reviewer")
+    foreign: list[str] = []
+    page.on("request", lambda r: None if r.url.startswith(live_server) else foreign.append(r.url))
+    page.goto(f"{live_server}/docs")
+    expect(page.locator(".swagger-ui .title").first).to_contain_text("Tidewaiter", timeout=15_000)
+    expect(page.get_by_text("/api/v1/intakes/{intake_id}/rows").first).to_be_visible()
+    assert foreign == []  # no CDN: the Swagger UI files are served locally

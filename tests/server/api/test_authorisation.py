@@ -22,9 +22,6 @@ OPEN = {
     ("GET", "/static/vendor/plotly.min.js"),
     ("GET", "/favicon.ico"),
     ("GET", "/openapi.json"),
-    ("GET", "/docs"),
-    ("GET", "/docs/oauth2-redirect"),
-    ("GET", "/redoc"),
 }
 
 # Changes to the caller's own things, which a viewer may make.
