@@ -74,15 +74,29 @@ def run_profile(args: argparse.Namespace) -> int:
     document = json.dumps(plain(profile), indent=2, ensure_ascii=False, allow_nan=False)
     try:
         if args.json is not None:
-            args.json.write_text(document + "\n", encoding="utf-8")
+            write_whole(args.json, document + "\n")
         elif args.html is None:
             sys.stdout.write(document + "\n")
         if render is not None:
-            args.html.write_text(render(profile), encoding="utf-8")
+            write_whole(args.html, render(profile))
     except OSError as exc:
         print(f"tidewaiter: cannot write the output: {exc}", file=sys.stderr)
         return EXIT_OUTPUT_FAILED
     return 0
+
+
+def write_whole(path: Path, text: str) -> None:
+    """Write ``text`` to ``path`` so that a reader never sees half a file.
+
+    A regular file is written beside its place and then moved there; a
+    device such as /dev/null is written directly.
+    """
+    if path.exists() and not path.is_file():
+        path.write_text(text, encoding="utf-8")
+        return
+    partial = path.with_name(f".{path.name}.partial")
+    partial.write_text(text, encoding="utf-8")
+    partial.replace(path)
 
 
 def _report_renderer() -> Any:

@@ -142,3 +142,14 @@ def test_sheet_selects_a_workbook_sheet(tmp_path: Path, capsys: pytest.CaptureFi
     )
     assert profile["dataset"]["rows"] == 3
     assert [column["name"] for column in profile["columns"]] == ["dock", "cranes"]
+
+
+def test_outputs_replace_whole_files_and_devices_are_written_directly(
+    delivery: Path, tmp_path: Path
+) -> None:
+    out_path = tmp_path / "profile.json"
+    out_path.write_text("old", encoding="utf-8")
+    assert main(["profile", str(delivery), "--json", str(out_path), "--quiet"]) == 0
+    assert json.loads(out_path.read_text(encoding="utf-8"))["format_version"] == 1
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["pallets.csv", "profile.json"]
+    assert main(["profile", str(delivery), "--json", "/dev/null", "--quiet"]) == 0
