@@ -17,6 +17,7 @@ the bin width 2 IQR n^(-1/3); D. W. Scott, Multivariate Density Estimation
 from __future__ import annotations
 
 import math
+from collections import Counter
 from typing import Any
 
 import numpy as np
@@ -128,7 +129,11 @@ class NumericState:
         out["histogram"] = self._histogram(iqr)
         out["density"] = _density(values, self.options.kde_sample_size, self.options.kde_points)
         sentinels = suspected_sentinels(
-            self.sentinels.counts, values, n, zero_share=self.options.zero_spike_share
+            self.sentinels.counts,
+            values,
+            n,
+            zero_share=self.options.zero_spike_share,
+            frequent=frequent_values(values) if exact else None,
         )
         return out, sentinels
 
@@ -207,6 +212,17 @@ class NumericState:
             cumulative = np.concatenate([[0], below, [n]])
             counts = np.maximum(np.diff(cumulative), 0)
         return {"edges": [float(e) for e in edges], "counts": [int(c) for c in counts]}
+
+
+def frequent_values(ordered: np.ndarray, top: int = 5) -> Counter[float]:
+    """The most frequent values of sorted numbers with their counts (run lengths), so
+    codes outside the configured list, such as -1, are weighed as sentinels too."""
+    if ordered.size == 0:
+        return Counter()
+    starts = np.flatnonzero(np.concatenate([[True], ordered[1:] != ordered[:-1]]))
+    counts = np.diff(np.concatenate([starts, [ordered.size]]))
+    chosen = np.argsort(counts, kind="stable")[-top:]
+    return Counter({float(ordered[starts[i]]): int(counts[i]) for i in chosen if counts[i] > 1})
 
 
 def _density(values: np.ndarray, sample_size: int, points: int) -> dict[str, Any] | None:

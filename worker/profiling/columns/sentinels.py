@@ -49,14 +49,18 @@ def suspected_sentinels(
     total: int,
     *,
     zero_share: float = 0.05,
+    frequent: Counter[float] | None = None,
 ) -> list[dict[str, Any]]:
     """The candidate codes that stand apart from the bulk, with their counts in the column.
 
     ``values`` are the column's values (all of them, or a uniform sample) and
-    ``total`` the column's non-missing count.
+    ``total`` the column's non-missing count. ``frequent`` are the column's most
+    frequent values with their counts: each is weighed against the bulk without
+    the configured codes, one at a time.
     """
     present = {value: count for value, count in counts.items() if count}
-    if not present or values.size == 0:
+    extra = {v: c for v, c in (frequent or {}).items() if c and v not in present}
+    if not (present or extra) or values.size == 0:
         return []
     codes = np.array(sorted(present), dtype=np.float64)
     others = values[~np.isin(values, codes)]
@@ -72,19 +76,29 @@ def suspected_sentinels(
     width = 2.0 * iqr / others.size ** (1.0 / 3.0) if iqr > 0 else 0.0
     if integers:
         width = max(width, 1.0)  # whole numbers cannot come nearer than 1
-    for code in codes.tolist():
-        count = present[code]
+    candidates = {**present, **extra}
+    for code in sorted(candidates):
+        count = candidates[code]
         share = count / total
         # The share of other values within one bin width of the code: a code is a
         # spike when it alone outweighs its whole neighbourhood.
-        near = np.count_nonzero(np.abs(others - code) <= width) / others.size
+        nearby = np.abs(others - code) <= width
+        bottom, top, non_negative = lowest, highest, all_non_negative
+        if code in extra:
+            rest = others[others != code]
+            if rest.size == 0:
+                continue
+            nearby &= others != code
+            bottom, top = float(rest.min()), float(rest.max())
+            non_negative = bottom >= 0
+        near = np.count_nonzero(nearby) / others.size
         spike = share > near
         if code == 0.0:
             if share >= zero_share and near < 0.1 * share:
                 found.append({"value": 0.0, "count": count})
             continue
-        gap = max(lowest - code, code - highest)
+        gap = max(bottom - code, code - top)
         apart = code < low or code > high or gap >= max(iqr, 1e-12)
-        if spike and (apart or (code < 0 and all_non_negative)):
+        if spike and (apart or (code < 0 and non_negative)):
             found.append({"value": code, "count": count})
     return found

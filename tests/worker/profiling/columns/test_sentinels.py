@@ -41,3 +41,15 @@ def test_an_ordinary_value_in_a_long_tail_is_not_a_code():
     values = np.round(rng.lognormal(5.0, 1.0, 50_000), 2)
     values[:2] = 999.0
     assert _sentinels(values) == []
+
+
+def test_a_frequent_code_outside_the_list_such_as_minus_one():
+    # Truth by construction: ages 18..90 with -1 written for "unknown".
+    rng = np.random.default_rng(14)
+    values = np.concatenate([rng.integers(18, 91, 800), [-1] * 40]).astype(float)
+    assert _sentinels(values) == [{"value": -1.0, "count": 40}]
+
+
+def test_the_mode_of_a_smooth_column_is_not_a_code():
+    values = np.random.default_rng(15).binomial(60, 0.5, size=5_000).astype(float)
+    assert _sentinels(values) == []
