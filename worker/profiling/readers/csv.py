@@ -24,7 +24,12 @@ from worker.profiling.options import ProfileOptions
 from worker.profiling.readers.compressed import GuardedStream, open_decompressed
 from worker.profiling.readers.encoding import arrow_encoding, decode_sample, detect_encoding
 from worker.profiling.readers.names import numbered_names, unique_names
-from worker.profiling.readers.sniff import preamble_lines, sniff_dialect, split_records
+from worker.profiling.readers.sniff import (
+    declared_delimiter,
+    preamble_lines,
+    sniff_dialect,
+    split_records,
+)
 from worker.profiling.readers.source import SourceInfo, TableSource
 
 _FIXED_LINE = -1  # marker: the error's line is already a physical line number
@@ -55,21 +60,25 @@ class CsvSource(TableSource):
         # Bytes on disk per byte of decoded text, for the progress estimate.
         decoded = len(text.encode("utf-8")) or 1
         self._bytes_per_text_byte = len(head) / decoded if encoding != "utf-8" else 1.0
-        dialect = sniff_dialect(text, complete=complete)
+        declared = declared_delimiter(text)
+        if declared:
+            text = text.split("\n", 1)[1] if "\n" in text else ""
+        dialect = sniff_dialect(text, complete=complete, delimiter=declared)
         self._skip = preamble_lines(text, dialect)
         if self._skip:
             skipped = [line for line in text.splitlines()[: self._skip] if line.strip()]
             self._errors.add(
-                1,
+                2 if declared else 1,
                 f"the {self._skip} line(s) before the table were skipped, "
                 f"starting {skipped[0][:60]!r}",
             )
             text = "\n".join(text.splitlines()[self._skip :])
-            dialect = sniff_dialect(text, complete=complete)
+            dialect = sniff_dialect(text, complete=complete, delimiter=declared)
         physical = text.splitlines()
         if not complete and len(physical) > 1:
             physical = physical[:-1]  # it may be cut off
         lines = [line for line in physical if line.strip()][:50]
+        self._skip += 1 if declared else 0
         records = split_records(lines, dialect.delimiter, dialect.quotechar)
         if not records:
             raise ProfileError("no line of the file holds a row of the table")

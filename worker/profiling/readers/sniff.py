@@ -25,6 +25,7 @@ _COMMA_GROUPS = re.compile(r"^[+-]?\d{1,3}(,\d{3})+(\.\d+)?$")
 _DOT_GROUPS = re.compile(r"^[+-]?\d{1,3}(\.\d{3})+(,\d+)?$")
 _SPACE_GROUPS = re.compile(r"^[+-]?\d{1,3}([ \u00a0\u202f]\d{3})+([.,]\d+)?$")
 _NUMBER = re.compile(r"^[+-]?(\d[\d.,  \u00a0\u202f]*|[.,]\d+)([eE][+-]?\d+)?$")
+_SEP_LINE = re.compile(r"sep=[^\w\s]|sep=\t")
 _DATE = re.compile(r"^\d{4}-\d{1,2}-\d{1,2}|^\d{1,2}[/.-]\d{1,2}[/.-]\d{2,4}$")
 
 
@@ -39,11 +40,18 @@ class Dialect:
     thousands: str | None = None
 
 
-def sniff_dialect(text: str, *, complete: bool) -> Dialect:
+def declared_delimiter(text: str) -> str | None:
+    """The delimiter a first line ``sep=;`` declares (spreadsheet programs write and
+    honour it), or None."""
+    first = text.split("\n", 1)[0].rstrip("\r")
+    return first[4] if _SEP_LINE.fullmatch(first) else None
+
+
+def sniff_dialect(text: str, *, complete: bool, delimiter: str | None = None) -> Dialect:
     """Guess the dialect of ``text``, the decoded start of a file.
 
     ``complete`` says the sample is the whole file; otherwise its last line
-    may be cut off and is ignored.
+    may be cut off and is ignored. ``delimiter``, when given, is not guessed.
     """
     lines = text.splitlines()
     if not complete and len(lines) > 1:
@@ -52,7 +60,7 @@ def sniff_dialect(text: str, *, complete: bool) -> Dialect:
     if not lines:
         return Dialect()
     quotechar = _quotechar(lines)
-    delimiter = _delimiter(lines, quotechar)
+    delimiter = delimiter or _delimiter(lines, quotechar)
     records = split_records(lines, delimiter, quotechar)
     decimal, thousands = _number_style([cell for row in records[1:] for cell in row])
     return Dialect(

@@ -229,3 +229,12 @@ def test_legacy_bytes_only_in_the_middle_are_found(tmp_path: Path) -> None:
     source, table = _read(_write(tmp_path, text, "cp1252"), sniff_sample_bytes=16 * 1024)
     assert source.info.encoding == "cp1252"
     assert "Zürich" in table.column("label").to_pylist()
+
+
+def test_a_declared_separator_line_is_honoured(tmp_path: Path) -> None:
+    # "sep=;" on the first line: the convention spreadsheet programs use.
+    source, table = _read(_write(tmp_path, "sep=;\nlot;kg\nA,1;2,5\nB,2;3\n"))
+    assert source.info.delimiter == ";"
+    assert source.column_names == ["lot", "kg"]
+    assert table.column("lot").to_pylist() == ["A,1", "B,2"]
+    assert source.parse_error_count == 0

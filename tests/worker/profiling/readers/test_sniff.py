@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from worker.profiling.readers.sniff import sniff_dialect
+from worker.profiling.readers.sniff import declared_delimiter, sniff_dialect
 
 
 def test_semicolons_win_over_decimal_commas() -> None:
@@ -47,3 +47,9 @@ def test_one_column_file_keeps_the_comma_default() -> None:
 def test_no_break_space_thousands_are_reported_as_they_are() -> None:
     dialect = sniff_dialect("lot;kg\nA;1\u00a0234,5\nB;12\u00a0000,25\n", complete=True)
     assert (dialect.decimal, dialect.thousands) == (",", "\u00a0")
+
+
+def test_declared_delimiter() -> None:
+    assert declared_delimiter("sep=;\na;b\n") == ";"
+    assert declared_delimiter("sep=\t\r\na\tb\n") == "\t"
+    assert declared_delimiter("separator,b\n") is None
