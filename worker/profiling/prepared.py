@@ -12,6 +12,7 @@ final kind of a column is decided later from the counts of every batch.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -202,6 +203,34 @@ class PreparedColumn:
     labels: pa.Array | None = None
     text: pa.Array | None = None
     padded: int = 0
+    label_counts: pa.StructArray | None = None  # value_counts of the labels, when known
+
+
+def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
+    """A label column whose labels need no trimming and hold no missing token, else None.
+
+    Labels repeat, so the checks run on the distinct labels of the batch (from
+    Arrow's ``value_counts``, which the label counts reuse), not on every cell.
+    """
+    counted = pc.value_counts(column)
+    values = counted.field("values")
+    if values.null_count:
+        counted = counted.filter(pc.is_valid(values))
+        values = counted.field("values")
+    trimmed = pc.ascii_trim_whitespace(values)
+    if len(values) and (
+        pc.any(pc.not_equal(pc.binary_length(trimmed), pc.binary_length(values))).as_py()
+        or pc.any(pc.equal(trimmed, "")).as_py()
+        or pc.any(pc.is_in(trimmed, value_set=pa.array(plan.missing_tokens, trimmed.type))).as_py()
+    ):
+        return None
+    return PreparedColumn(
+        missing=null_mask(column),
+        counts=MissingCounts(null=column.null_count, blank=0, tokens={}),
+        labels=column,
+        text=column,
+        label_counts=counted,
+    )
 
 
 def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColumn:
@@ -212,6 +241,13 @@ def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColu
             mask = null_mask(column)
             detail = MissingCounts(null=column.null_count, blank=0, tokens={})
             return PreparedColumn(missing=mask, counts=detail, numbers=numbers, text=column)
+    if is_text_type(column.type) and name in plan.labels:
+        prepared = _clean_labels(column, plan)
+        if prepared is not None:
+            if name in plan.numeric:
+                numbers = parse_numbers(column, decimal=plan.decimal, thousands=plan.thousands)
+                prepared = dataclasses.replace(prepared, numbers=numbers)
+            return prepared
     if is_text_type(column.type):
         cleaned, mask, detail, padded = _text_missing(column, plan.missing_tokens)
         numbers = None

@@ -4,7 +4,7 @@ import numpy as np
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from worker.profiling.prepared import BatchPlan, parse_numbers, prepare_batch
+from worker.profiling.prepared import BatchPlan, MissingCounts, parse_numbers, prepare_batch
 
 
 def _plan(**kw):
@@ -61,3 +61,15 @@ def test_null_mask_and_lengths_of_sliced_arrays():
     assert null_mask(array).tolist() == array.is_null().to_pylist()
     expected = [0 if v is None else v for v in pc.binary_length(array).to_pylist()]
     assert _lengths(array).tolist() == expected
+
+
+def test_clean_label_columns_are_counted_once_and_padded_ones_take_the_careful_path():
+    plan = _plan(numeric=frozenset(), labels=frozenset({"s"}))
+    clean = prepare_batch(pa.record_batch({"s": pa.array(["a", None, "b", "a"])}), 0, plan)
+    counted = clean.missing_counts["s"], clean.labels["s"].to_pylist()
+    assert counted == (MissingCounts(null=1, blank=0, tokens={}), ["a", None, "b", "a"])
+    assert clean.missing["s"].tolist() == [False, True, False, False]
+    padded = prepare_batch(pa.record_batch({"s": pa.array(["a ", "NA", "b", " "])}), 0, plan)
+    assert padded.labels["s"].to_pylist() == ["a", None, "b", None]
+    assert padded.missing_counts["s"] == MissingCounts(null=0, blank=1, tokens={"NA": 1})
+    assert padded.padded["s"] == 1

@@ -88,16 +88,18 @@ class ColumnState:
             self.numeric.update(numbers)
         labels = self.labels
         if labels is not None:
-            if self.candidates.text:
+            was_exact = labels.exact
+            if prepared.label_counts is not None:
+                overflow = labels.update_counts(prepared.label_counts)
+            elif self.candidates.text:
                 # Labels are counted as written, so "active " and "Active" stay apart
                 # and show up as variants.
                 written = raw
                 if prepared.counts.total:
                     written = pc.if_else(pa.array(missing), pa.scalar(None, raw.type), raw)
+                overflow = labels.update(written)
             else:
-                written = prepared.labels
-            was_exact = labels.exact
-            overflow = labels.update(written)
+                overflow = labels.update(prepared.labels)
             if overflow is not None:
                 # The label counts just became a summary: from here on the distinct
                 # count needs hashes, starting with every label seen so far.

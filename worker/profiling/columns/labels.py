@@ -58,11 +58,17 @@ class LabelState:
         present = labels.drop_null() if labels.null_count else labels
         if len(present) == 0:
             return None
+        return self.update_counts(pc.value_counts(present))
+
+    def update_counts(self, counted: pa.StructArray) -> list[str] | None:
+        """Add one batch's label counts (Arrow ``value_counts`` of its non-null labels);
+        returns as ``update`` does."""
+        if len(counted) == 0:
+            return None
         was_exact = self.exact
-        counted = pc.value_counts(present)
         values = counted.field("values")
         counts = counted.field("counts").to_numpy()
-        self.n += len(present)
+        self.n += int(counts.sum())
         if len(counts) > self.exact_bound:
             # Prune the batch alone first, so a batch of many distinct labels never
             # becomes a Python loop per label.
