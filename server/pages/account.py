@@ -69,6 +69,9 @@ def sign_in_submit(
             # The form again with the reason; a refused password is no error of the page.
             status_code=429 if outcome.retry_after is not None else 200,
         )
+    previous = request.cookies.get(SESSION_COOKIE)
+    if previous:  # a sign-in never carries on an earlier session (no session fixation)
+        accounts.close_session(session, previous)
     secret = accounts.open_session(
         session,
         outcome.user,

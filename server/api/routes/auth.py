@@ -69,6 +69,9 @@ def api_sign_in(
             )
         raise ApiError(401, outcome.message, code="not_signed_in")
     user = outcome.user
+    previous = request.cookies.get(SESSION_COOKIE)
+    if previous:  # a sign-in never carries on an earlier session (no session fixation)
+        accounts.close_session(session, previous)
     secret = accounts.open_session(
         session,
         user,

@@ -187,3 +187,14 @@ def test_changing_ones_password_ends_the_other_sessions(anonymous_client, app_se
     assert other.get("/api/v1/auth/me").status_code == 401  # the other browser is out
     answer = other.post("/api/v1/auth/sign-in", json={"name": "vera", "password": new})
     assert answer.status_code == 200
+
+
+def test_signing_in_again_ends_the_earlier_session(anonymous_client, app_settings) -> None:
+    add_user(app_settings, "vera", "viewer")
+    add_user(app_settings, "rui", "reviewer")
+    sign_in(anonymous_client, "vera")
+    first = anonymous_client.cookies[SESSION_COOKIE]
+    sign_in(anonymous_client, "rui")
+    assert anonymous_client.cookies[SESSION_COOKIE] != first
+    anonymous_client.cookies.set(SESSION_COOKIE, first)
+    assert anonymous_client.get("/api/v1/auth/me").status_code == 401
