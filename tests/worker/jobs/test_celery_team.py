@@ -56,6 +56,7 @@ def team_settings(tmp_path_factory: pytest.TempPathFactory) -> Iterator[Settings
             database_url=database_url,
             redis_url=redis_url,
             job_runner="celery",
+            upload_limit_bytes=256 * 1024 * 1024,
         )
         schema.upgrade(database_url)
         yield settings
@@ -133,8 +134,9 @@ def test_a_duplicated_message_does_not_duplicate_the_profile(
 ) -> None:
     from worker.jobs import enqueue_profile
 
-    make_supplier(team_client, "Gullwick tide-gauge station")
-    created = upload(team_client, DELIVERY + b"2031-03-05,BB-002,cod,50.0,6.0\n", supplier=2).json()
+    supplier = make_supplier(team_client, "Gullwick tide-gauge station")
+    extra_row = b"2031-03-05,BB-002,cod,50.0,6.0\n"
+    created = upload(team_client, DELIVERY + extra_row, supplier=supplier["id"]).json()
     enqueue_profile(created["id"], team_settings)  # the same job sent a second time
     intake = wait_for_intake(team_client, created["id"], timeout=90)
     assert intake["status"] == "ready"
@@ -154,10 +156,56 @@ def test_a_duplicated_message_does_not_duplicate_the_profile(
 def test_unreadable_file_fails_in_the_worker_which_keeps_running(
     team_client: TestClient, worker_process: subprocess.Popen[bytes]
 ) -> None:
-    created = upload(team_client, bytes(range(256)) * 8, supplier=1, name="broken.csv").json()
+    supplier = make_supplier(team_client, "Saltmere pilot station")
+    garbage = bytes(range(256)) * 8
+    created = upload(team_client, garbage, supplier=supplier["id"], name="broken.csv").json()
     intake = wait_for_intake(team_client, created["id"], timeout=90)
     assert intake["status"] == "failed"
     assert intake["error"]
     assert worker_process.poll() is None  # still alive
     healthy = team_client.get("/healthz").json()
     assert healthy["checks"]["queue"] == {"state": "ok", "runner": "celery", "waiting": 0}
+
+
+def _children(pid: int) -> list[int]:
+    """Process ids whose parent is ``pid`` (the worker's pool processes)."""
+    found = []
+    for entry in Path("/proc").iterdir():
+        if entry.name.isdigit():
+            try:
+                stat = (entry / "stat").read_text()
+            except OSError:
+                continue
+            if int(stat.rsplit(")", 1)[1].split()[1]) == pid:
+                found.append(int(entry.name))
+    return found
+
+
+def test_a_job_whose_worker_process_dies_is_delivered_again(
+    team_client: TestClient, worker_process: subprocess.Popen[bytes]
+) -> None:
+    # Invented readings, large enough that profiling lasts a moment.
+    block = b"".join(
+        f"{i % 97},{(i * 7919) % 1000 / 10:.1f},{(i * 104729) % 5000 / 100:.2f}\n".encode()
+        for i in range(20_000)
+    )
+    content = b"station,level_cm,temp_c\n" + block * 60
+    supplier = make_supplier(team_client, "Saltmere harbour-master's gauge")
+    created = upload(team_client, content, supplier=supplier["id"], name="gauge-dump.csv").json()
+    deadline = time.monotonic() + 60
+    while (status := team_client.get(f"/api/v1/intakes/{created['id']}").json()["status"]) != (
+        "profiling"
+    ):
+        assert status == "queued", f"the job ended ({status}) before it could be interrupted"
+        assert time.monotonic() < deadline, "the job never started"
+        time.sleep(0.02)
+    pool = _children(worker_process.pid)
+    assert pool, "the worker has no pool process"
+    for pid in pool:  # what the kernel does to a process out of memory
+        os.kill(pid, signal.SIGKILL)
+
+    intake = wait_for_intake(team_client, created["id"], timeout=120)
+    assert intake["status"] == "ready", intake["error"]
+    assert intake["attempts"] == 2  # the first attempt died; the message came back
+    assert intake["headline"]["rows"] == 1_200_000
+    assert worker_process.poll() is None
