@@ -271,3 +271,24 @@ def test_mask_profile_masks_each_side_of_a_crosstab_by_its_own_kind() -> None:
 def test_a_stray_value_of_another_kind_is_still_hidden() -> None:
     # A phone column with one e-mail address in it: the address has no digits to hide.
     assert mask_value("lo@example.org", "phone") == "l********"
+
+
+_LOCAL = st.text(alphabet="abcdefghijklmnopqrstuvwxyz0123456789._", min_size=3, max_size=20)
+_LABEL = st.text(alphabet="abcdefghijklmnopqrstuvwxyz", min_size=3, max_size=12)
+
+
+@given(_LOCAL, _LABEL, st.sampled_from(["org", "net", "example"]))
+@settings(max_examples=200, deadline=None)
+def test_a_masked_address_keeps_neither_its_name_nor_its_domain(local, host, top) -> None:
+    address = f"{local}@{host}.{top}"
+    masked = mask_value(address, "email")
+    # All that is left of the address: one letter of each name, and the top-level domain.
+    assert masked == f"{local[0]}***@{host[0]}***.{top}"
+
+
+@given(st.text(alphabet="0123456789", min_size=13, max_size=19))
+@settings(max_examples=200, deadline=None)
+def test_a_masked_card_shows_only_its_last_four_digits(digits: str) -> None:
+    masked = mask_value(digits, "card")
+    assert masked[-4:] == digits[-4:]
+    assert set(masked[:-4]) == {"*"} and len(masked) == len(digits)
