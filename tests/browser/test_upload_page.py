@@ -22,7 +22,7 @@ def test_upload_shows_the_scorecard_without_a_reload(
     expect(page.locator("#chosen-file")).to_contain_text("harbour-day.csv")
     page.get_by_role("button", name="Upload and profile").click()
     result = page.locator("#upload-result")
-    expect(result).to_be_visible(timeout=60_000)
+    expect(result).to_be_visible(timeout=120_000)
     assert page.locator("#send-progress").evaluate("bar => bar.value") == 1
     assert page.locator("#profile-progress").is_visible()
     expect(page.locator("#result-rows")).to_have_text("240")  # rows written by construction
@@ -50,3 +50,19 @@ def test_upload_errors_say_what_to_do(page: Page, live_server: str, tmp_path: Pa
     message = page.locator("#upload-message")
     expect(message).to_contain_text("could not be read", timeout=60_000)
     expect(message).to_contain_text("Check that it is a CSV")
+
+
+def test_the_drop_zone_works_from_the_keyboard(page: Page, live_server: str, tmp_path: Path):
+    sign_in(page, live_server)
+    page.goto(f"{live_server}/upload")
+    for _ in range(25):  # Tab through the page until the drop zone has the focus
+        page.keyboard.press("Tab")
+        if page.evaluate("document.activeElement.id") == "dropzone":
+            break
+    assert page.evaluate("document.activeElement.id") == "dropzone"
+    outline = page.evaluate("getComputedStyle(document.activeElement).outlineStyle")
+    assert outline == "solid"  # the focus is visible
+    with page.expect_file_chooser() as chooser:
+        page.keyboard.press("Enter")
+    chooser.value.set_files(write_landings(tmp_path / "keyboard.csv"))
+    expect(page.locator("#chosen-file")).to_contain_text("keyboard.csv")

@@ -45,10 +45,8 @@
     newField.hidden = supplierSelect.value !== "new";
     if (!newField.hidden) newName.focus();
   });
+  // A real button: Enter and Space press it like a click, which may open the file chooser.
   zone.addEventListener("click", function () { input.click(); });
-  zone.addEventListener("keydown", function (e) {
-    if (e.key === "Enter" || e.key === " ") { e.preventDefault(); input.click(); }
-  });
   input.addEventListener("change", function () { pick(input.files[0]); });
   ["dragenter", "dragover"].forEach(function (name) {
     zone.addEventListener(name, function (e) { e.preventDefault(); zone.classList.add("over"); });
