@@ -7,13 +7,13 @@ power gets 403. Both are the same JSON shape as every other API error.
 
 from __future__ import annotations
 
-from html import escape
 from urllib.parse import quote
 
 from fastapi import FastAPI, Request
-from fastapi.responses import HTMLResponse, RedirectResponse, Response
+from fastapi.responses import RedirectResponse, Response
 
 from server.api.errors import error_response
+from server.pages.templating import templates
 from server.security.access import Forbidden, SignInRequired
 from server.security.audit import AuditMiddleware
 from server.security.headers import SecurityHeadersMiddleware
@@ -56,8 +56,6 @@ def install_security(app: FastAPI, settings: Settings) -> None:
     async def _forbidden(request: Request, exc: Forbidden) -> Response:
         if wants_json(request):
             return error_response(403, exc.message, exc.code)
-        return HTMLResponse(
-            f"<!doctype html><title>Not allowed · Tidewaiter</title>"
-            f"<p>{escape(exc.message)}</p><p><a href='/'>Back to the intakes</a></p>",
-            status_code=403,
+        return templates.TemplateResponse(
+            request, "account/refused.html", {"message": exc.message}, status_code=403
         )

@@ -162,3 +162,10 @@ def test_the_account_page_changes_the_password(anonymous_client, app_settings) -
         data={"csrf_token": token, "current": PASSWORD, "new": "a brand new tide table"},
     )
     assert done.status_code == 200 and "Your password is changed" in done.text
+
+
+def test_a_refused_page_says_why_in_a_page(client, app_settings) -> None:
+    viewer = bearer(add_user(app_settings, "vera", "viewer"))
+    answer = client.get("/admin/users", headers=viewer)
+    assert answer.status_code == 403
+    assert "<h1>Not allowed</h1>" in answer.text and "admin role" in answer.text
