@@ -28,6 +28,7 @@ def test_upload_shows_the_scorecard_without_a_reload(
     expect(page.locator("#result-rows")).to_have_text("240")  # rows written by construction
     expect(page.locator("#result-columns")).to_have_text("7")
     assert page.locator("#result-score").inner_text().isdigit()
+    expect(page.locator("#result-judgement")).to_contain_text("suggested:")
     screenshot_widths(page, screenshot_dir, "upload-done")
     page.locator("#result-link").click()
     expect(page.get_by_role("heading", name="harbour-day.csv")).to_be_visible()

@@ -154,6 +154,35 @@
     $("result-link").href = "/intakes/" + intake.id;
     $("upload-result").hidden = false;
     $("result-link").focus();
+    judgement(intake.id, 20);
+  }
+
+  function badge(text, kind) {
+    var span = document.createElement("span");
+    span.className = "badge " + kind;
+    span.textContent = text;
+    return span;
+  }
+
+  function judgement(id, tries) {
+    // The judgement (rules and baseline included) is stored right after profiling.
+    fetch("/api/v1/intakes/" + id + "/judgement", { credentials: "same-origin" })
+      .then(function (r) { return r.ok ? r.json() : null; })
+      .then(function (body) {
+        if (!body) {
+          if (tries > 0) setTimeout(function () { judgement(id, tries - 1); }, 500);
+          return;
+        }
+        var line = $("result-judgement");
+        line.replaceChildren(document.createTextNode("suggested: "));
+        line.append(badge(body.suggested_verdict, body.suggested_verdict), " · flags: ");
+        ["critical", "warning", "info"].forEach(function (severity) {
+          line.append(badge((body.counts[severity] || 0) + " " + severity, severity), " ");
+        });
+        var score = $("result-score");
+        if (body.overall_score != null) score.textContent = String(body.overall_score);
+      })
+      .catch(function () { return null; });
   }
 
   $("upload-another").addEventListener("click", function () { window.location.reload(); });
