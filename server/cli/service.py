@@ -102,12 +102,16 @@ def _worker(args: argparse.Namespace) -> int:
 def _sweep(args: argparse.Namespace) -> int:
     import time
 
+    from server.security.retention import purge_by_settings
     from worker.jobs.sweeper import sweep
 
     settings = get_settings()
     while True:
         result = sweep(settings)
         print(f"sweep: requeued {result.requeued or 'none'}, gave up on {result.failed or 'none'}")
+        purged = purge_by_settings(settings)  # retention and expired sessions, as in serve
+        if purged:
+            print(f"retention: purged the stored files of intakes {purged}")
         if not args.loop:
             return 0
         time.sleep(settings.sweeper_interval_seconds)
