@@ -11,6 +11,9 @@ from worker.jobs.profile_job import profile_intake
 
 log = logging.getLogger(__name__)
 
+INTERRUPT_GRACE_SECONDS = 30.0
+"""How long a stopping server waits for its running jobs to notice and give their intakes back."""
+
 
 class InProcessRunner:
     """Runs profiling jobs on a small thread pool.
@@ -27,6 +30,7 @@ class InProcessRunner:
         )
         self._lock = threading.Lock()
         self._futures: set[Future[object]] = set()
+        self._stopping = threading.Event()
 
     def submit(self, intake_id: int) -> None:
         """Profile ``intake_id`` on the pool."""
@@ -41,7 +45,7 @@ class InProcessRunner:
 
     def _run(self, intake_id: int) -> object:
         try:
-            return profile_intake(intake_id, self.settings)
+            return profile_intake(intake_id, self.settings, stop_requested=self._stopping.is_set)
         except Exception:
             # A transient error leaves the intake queued/profiling: the sweeper retries it.
             log.exception("job for intake %s failed; the sweeper will enqueue it again", intake_id)
@@ -55,8 +59,18 @@ class InProcessRunner:
         return not not_done
 
     def shutdown(self, *, wait_for_jobs: bool = False) -> None:
-        """Stop taking jobs; queued ones stay queued in the database."""
-        self._pool.shutdown(wait=wait_for_jobs, cancel_futures=not wait_for_jobs)
+        """Stop taking jobs; queued ones stay queued in the database.
+
+        Unless ``wait_for_jobs``, running jobs are interrupted at their next
+        progress report and put back to queued, so a stopping server does not
+        wait for a long file (the next start profiles it again).
+        """
+        if not wait_for_jobs:
+            self._stopping.set()
+        self._pool.shutdown(wait=False, cancel_futures=not wait_for_jobs)
+        # Either way, let running jobs end (an interrupted one within one progress report)
+        # before the interpreter shuts down the thread pools the engine relies on.
+        self.wait_idle(timeout=None if wait_for_jobs else INTERRUPT_GRACE_SECONDS)
 
 
 _runners: dict[int, InProcessRunner] = {}

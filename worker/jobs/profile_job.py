@@ -17,6 +17,7 @@ from __future__ import annotations
 import logging
 import os
 import uuid
+from collections.abc import Callable
 from typing import Any
 
 import redis.exceptions
@@ -34,7 +35,7 @@ from server.store import (
 )
 from server.store.models import utcnow
 from worker.jobs.judging import judge_quietly
-from worker.jobs.progress import ProgressReporter
+from worker.jobs.progress import JobInterrupted, ProgressReporter
 from worker.jobs.summaries import column_rows, json_safe, overall_score
 from worker.profiling import ProfileError, profile_file
 
@@ -50,12 +51,18 @@ TRANSIENT_ERRORS: tuple[type[BaseException], ...] = (
 
 
 def profile_intake(
-    intake_id: int, settings: Settings | None = None, *, force: bool = False
+    intake_id: int,
+    settings: Settings | None = None,
+    *,
+    force: bool = False,
+    stop_requested: Callable[[], bool] | None = None,
 ) -> IntakeStatus | None:
     """Profile intake ``intake_id`` and store its profile; returns its final status.
 
     An intake already ``ready`` is left alone unless ``force`` is set (a
     redelivered message costs nothing). Returns None for an unknown id.
+    ``stop_requested`` lets the in-process runner interrupt a long job when the
+    server stops: the intake goes back to queued and is profiled at the next start.
     """
     settings = settings or get_settings()
     store = file_store(settings)
@@ -96,6 +103,7 @@ def profile_intake(
         lambda stage, share: _write_progress(settings, intake_id, stage, share),
         interval=settings.job_progress_interval_seconds,
         heartbeat=settings.job_heartbeat_seconds,
+        stop_requested=stop_requested,
     )
     try:
         with reporter:
@@ -109,11 +117,20 @@ def profile_intake(
     except ProfileError as exc:
         partial_copy.unlink(missing_ok=True)
         return _fail(settings, intake_id, str(exc))
+    except JobInterrupted:
+        partial_copy.unlink(missing_ok=True)
+        _requeue(settings, intake_id)
+        return IntakeStatus.queued
     except TRANSIENT_ERRORS:
         partial_copy.unlink(missing_ok=True)
         raise
     except Exception as exc:
         partial_copy.unlink(missing_ok=True)
+        if stop_requested is not None and stop_requested():
+            # The process is going away under the job (its thread pools refuse new work):
+            # not the file's fault, so it goes back to the queue.
+            _requeue(settings, intake_id)
+            return IntakeStatus.queued
         log.exception("profiling intake %s stopped on an unexpected error", intake_id)
         return _fail(
             settings,
@@ -134,6 +151,20 @@ def _write_progress(settings: Settings, intake_id: int, stage: str, share: float
             update(Intake)
             .where(Intake.id == intake_id, Intake.status == IntakeStatus.profiling)
             .values(stage=stage[:40], progress=share, updated_at=utcnow())
+        )
+
+
+def _requeue(settings: Settings, intake_id: int) -> None:
+    with session_scope(settings) as session:
+        session.execute(
+            update(Intake)
+            .where(Intake.id == intake_id)
+            .values(
+                status=IntakeStatus.queued,
+                stage="interrupted",
+                progress=0.0,
+                attempts=Intake.attempts - 1,  # not the file's fault: the attempt does not count
+            )
         )
 
 

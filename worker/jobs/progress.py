@@ -19,11 +19,23 @@ log = logging.getLogger(__name__)
 Writer = Callable[[str, float], None]
 
 
+class JobInterrupted(Exception):
+    """The process is stopping: the job gives its intake back to the queue."""
+
+
 class ProgressReporter:
     """Throttled, heartbeat-keeping progress writes for one job."""
 
-    def __init__(self, write: Writer, *, interval: float, heartbeat: float) -> None:
+    def __init__(
+        self,
+        write: Writer,
+        *,
+        interval: float,
+        heartbeat: float,
+        stop_requested: Callable[[], bool] | None = None,
+    ) -> None:
         self._write = write
+        self._stop_requested = stop_requested
         self._interval = interval
         self._heartbeat = heartbeat
         self._lock = threading.Lock()
@@ -34,7 +46,13 @@ class ProgressReporter:
         self.writes = 0
 
     def report(self, stage: str, share: float) -> None:
-        """Record the job's current stage and share of bytes read (0 to 1)."""
+        """Record the job's current stage and share of bytes read (0 to 1).
+
+        Raises JobInterrupted when the process has asked its jobs to stop: the
+        engine reports often, so this is where a long job notices.
+        """
+        if self._stop_requested is not None and self._stop_requested():
+            raise JobInterrupted()
         with self._lock:
             self._latest = (stage, min(max(float(share), 0.0), 1.0))
 

@@ -172,3 +172,27 @@ def test_a_message_back_from_a_lost_worker_gives_up_after_the_attempt_limit(
     assert profile_intake(intake_id, app_settings) == IntakeStatus.failed
     with session_scope(app_settings) as session:
         assert "did not finish after" in session.get(Intake, intake_id).error
+
+
+def test_a_stopping_process_puts_its_running_job_back_in_the_queue(
+    app_settings: Settings, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import threading
+
+    stop = threading.Event()
+
+    def long_engine(path, options, *, progress, **kwargs):
+        for i in range(10_000):
+            progress("reading", i / 10_000)
+            if i == 5:
+                stop.set()  # the server is asked to stop mid-file
+        raise AssertionError("the engine should have been interrupted")
+
+    monkeypatch.setattr("worker.jobs.profile_job.profile_file", long_engine)
+    intake_id = _new_intake(app_settings)
+    status = profile_intake(intake_id, app_settings, stop_requested=stop.is_set)
+    assert status == IntakeStatus.queued
+    with session_scope(app_settings) as session:
+        intake = session.get(Intake, intake_id)
+        assert (intake.status, intake.stage, intake.attempts) == ("queued", "interrupted", 0)
+    assert _counts(app_settings, intake_id) == (0, 0)
