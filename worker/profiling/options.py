@@ -43,16 +43,11 @@ class ProfileOptions(BaseModel):
     exact_bound: int = Field(
         1_000_000,
         description="Non-missing values per column kept exactly; above it quantiles "
-        "come from a KLL sketch whose rank error the profile states (common practice).",
+        "come from a uniform sample whose rank error the profile states (common practice).",
     )
     missing_tokens: tuple[str, ...] = Field(
         DEFAULT_MISSING_TOKENS,
         description="Cell texts counted as missing, after trimming whitespace (common practice).",
-    )
-    kll_k: int = Field(
-        800,
-        description="Size parameter k of the KLL quantile sketch; its normalized rank error "
-        "shrinks roughly as 1/k (Karnin, Lang and Liberty 2016; DataSketches default is 200).",
     )
     distinct_exact_bound: int = Field(
         100_000,
@@ -116,9 +111,11 @@ class ProfileOptions(BaseModel):
         "(common practice).",
     )
     sample_size: int = Field(
-        20_000,
-        description="Uniform sample per numeric column above the exact bound, for MAD, "
-        "density and sentinels (common practice).",
+        262_144,
+        ge=1,
+        description="Uniform sample per numeric or date column above the exact bound, for "
+        "quantiles, counts below a point, MAD, density and sentinels; its rank error is the "
+        "DKW bound sqrt(ln(2/0.01) / 2m), about 0.0032 here (Massart 1990).",
     )
     kde_sample_size: int = Field(
         10_000, description="Most values a density curve is estimated from (common practice)."

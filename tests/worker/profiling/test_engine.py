@@ -168,15 +168,16 @@ numbers = st.one_of(st.none(), st.floats(-1e6, 1e6, allow_nan=False, allow_infin
 labels = st.sampled_from(["north", "south", "South", "east ", None])
 
 
-@settings(max_examples=25, deadline=None)
+# derandomize: above the bound the rank error holds with 99 % probability (DKW).
+@settings(max_examples=25, deadline=None, derandomize=True)
 @given(
     st.lists(st.tuples(numbers, labels), min_size=2, max_size=150),
     st.integers(2, 5),
     st.sampled_from([30, 1_000_000]),
 )
 def test_k_chunks_merged_equal_one_pass(rows, k, exact_bound):
-    # A small exact bound puts the quantiles in KLL sketches.
-    options = ProfileOptions(threads=1, exact_bound=exact_bound, kll_k=200)
+    # A small exact bound puts the quantiles in uniform samples.
+    options = ProfileOptions(threads=1, exact_bound=exact_bound, sample_size=50)
     info = SourceInfo(format="csv")
 
     def batch(part):

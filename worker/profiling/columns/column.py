@@ -63,7 +63,7 @@ class ColumnState:
                 self.candidates.date_formats,
                 now=self.now,
                 exact_bound=options.exact_bound,
-                kll_k=options.kll_k,
+                sample_size=options.sample_size,
             )
         # Lengths and shapes describe text; numbers or dates written as text skip them.
         if candidates.text and candidates.number_share <= 0.5 and not candidates.date_formats:

@@ -90,10 +90,10 @@ def candidate_formats(sample: pa.Array, min_share: float = 0.05) -> list[str]:
 
 
 class _FormatState:
-    def __init__(self, exact_bound: int, kll_k: int) -> None:
+    def __init__(self, exact_bound: int, sample_size: int) -> None:
         self.parsed = 0
         self.future = 0
-        self.seconds = QuantileState(exact_bound, kll_k)
+        self.seconds = QuantileState(exact_bound, sample_size)
         self.finest = 0  # index into _GRAINS of the finest unit seen varying
 
     def update(self, parsed: pa.Array, now: float) -> None:
@@ -108,7 +108,7 @@ class _FormatState:
             self.finest = max(self.finest, _finest_grain(seconds, present, self.finest))
 
     def merge(self, other: _FormatState) -> _FormatState:
-        out = _FormatState(self.seconds.exact_bound, self.seconds.kll_k)
+        out = _FormatState(self.seconds.exact_bound, self.seconds.sample_size)
         out.parsed = self.parsed + other.parsed
         out.future = self.future + other.future
         out.seconds = self.seconds.merge(other.seconds)
@@ -144,11 +144,16 @@ class DatetimeState:
     """Parse counts and time figures for each candidate format of a column."""
 
     def __init__(
-        self, formats: list[str], *, now: float, exact_bound: int = 1_000_000, kll_k: int = 800
+        self,
+        formats: list[str],
+        *,
+        now: float,
+        exact_bound: int = 1_000_000,
+        sample_size: int = 262_144,
     ) -> None:
         self.formats = list(formats)
         self.now = now
-        self.states = {fmt: _FormatState(exact_bound, kll_k) for fmt in self.formats}
+        self.states = {fmt: _FormatState(exact_bound, sample_size) for fmt in self.formats}
         self.examples: dict[str, list[str]] = {fmt: [] for fmt in self.formats}
 
     def update(self, values: pa.Array) -> None:

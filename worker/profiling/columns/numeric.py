@@ -1,10 +1,10 @@
 """Figures of a numeric column: moments, quantiles, outliers, histogram, density and box.
 
 Moments come from ``MomentsState`` (exact, mergeable); order statistics come
-from ``QuantileState`` (exact up to the bound, KLL above it). Above the bound
-the counts of outliers and histogram bars are estimated from the sketch's
-ranks and the median absolute deviation and density from a uniform sample;
-``exact`` says which.
+from ``QuantileState`` (exact up to the bound, a uniform sample above it).
+Above the bound the quantiles, the counts of outliers and histogram bars, the
+median absolute deviation and the density are estimated from that sample;
+``exact`` says which and ``rank_error`` how far a rank may be off.
 
 References: J. W. Tukey, Exploratory Data Analysis (1977) for the fences at
 1.5 × IQR and the far-out fences at 3 × IQR; B. Iglewicz and D. C. Hoaglin,
@@ -25,7 +25,6 @@ from scipy import stats
 
 from worker.profiling.columns.moments import MomentsState
 from worker.profiling.columns.quantiles import QuantileState
-from worker.profiling.columns.sample import SampleState
 from worker.profiling.columns.sentinels import SentinelCounts, suspected_sentinels
 from worker.profiling.options import ProfileOptions
 
@@ -39,8 +38,7 @@ class NumericState:
     def __init__(self, options: ProfileOptions) -> None:
         self.options = options
         self.moments = MomentsState()
-        self.quantiles = QuantileState(options.exact_bound, options.kll_k)
-        self.sample: SampleState | None = None
+        self.quantiles = QuantileState(options.exact_bound, options.sample_size)
         self.sentinels = SentinelCounts(options.sentinel_values)
         self.zeros = 0
         self.negatives = 0
@@ -52,15 +50,7 @@ class NumericState:
         if values.size == 0:
             return
         self.moments.update(values)
-        quantiles = self.quantiles
-        if quantiles.exact and quantiles.n + values.size > quantiles.exact_bound:
-            # The switch to the sketch drops the kept values: sample them first.
-            self.sample = SampleState(self.options.sample_size)
-            for chunk in quantiles.chunks:
-                self.sample.update(chunk)
-        if self.sample is not None:
-            self.sample.update(values)
-        quantiles.update(values)
+        self.quantiles.update(values)
         self.zeros += int(np.count_nonzero(values == 0.0))
         self.negatives += int(np.count_nonzero(values < 0.0))
         if self.integers:
@@ -75,21 +65,11 @@ class NumericState:
         out.zeros = self.zeros + other.zeros
         out.negatives = self.negatives + other.negatives
         out.integers = self.integers and other.integers
-        if not out.quantiles.exact:
-            out.sample = SampleState(self.options.sample_size)
-            for part in (self, other):
-                if part.sample is not None:
-                    out.sample = out.sample.merge(part.sample)
-                elif part.quantiles.n:
-                    out.sample.update(part.quantiles.sorted_values())
         return out
 
     def sample_values(self) -> np.ndarray:
-        """The exact values, or the uniform sample once the sketch is in use."""
-        if self.quantiles.exact:
-            return self.quantiles.sorted_values()
-        assert self.sample is not None
-        return np.sort(self.sample.values)
+        """The exact values, or the uniform sample above the bound; sorted."""
+        return self.quantiles.sorted_sample()
 
     def finalize(self) -> tuple[dict[str, Any], list[dict[str, Any]]]:
         """The numeric section of the profile and the suspected sentinels."""

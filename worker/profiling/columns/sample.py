@@ -4,6 +4,11 @@ Every value gets an independent uniform key; the sample is the ``size`` values
 with the smallest keys, so the union of two samples cut to ``size`` is again a
 uniform sample of the union of their streams.
 
+Values whose key cannot enter (at or above the largest key kept) are dropped at
+once; the others are buffered and the buffer is cut back to ``size`` only when
+it holds twice as many, so a value costs one random draw and one comparison
+instead of a partition of the whole sample per batch.
+
 References: E. Cohen and H. Kaplan, "Summarizing data using bottom-k sketches", PODC 2007.
 """
 
@@ -18,28 +23,55 @@ class SampleState:
     def __init__(self, size: int, seed: int = 0) -> None:
         self.size = size
         self._rng = np.random.default_rng(seed)
-        self.keys = np.empty(0)
-        self.values = np.empty(0)
+        self._keys: list[np.ndarray] = []
+        self._values: list[np.ndarray] = []
+        self._buffered = 0
+        self._threshold = np.inf  # keys at or above it can no longer enter
+
+    @property
+    def values(self) -> np.ndarray:
+        """The sampled values (in no particular order)."""
+        self._compact()
+        return self._values[0] if self._values else np.empty(0)
+
+    @property
+    def keys(self) -> np.ndarray:
+        self._compact()
+        return self._keys[0] if self._keys else np.empty(0)
 
     def update(self, values: np.ndarray) -> None:
         if values.size == 0:
             return
         keys = self._rng.random(values.size)
-        if self.keys.size == self.size:
-            # Only keys below the current largest kept key can enter.
-            entering = keys < self.keys.max()
+        if self._threshold < np.inf:
+            entering = keys < self._threshold
             keys, values = keys[entering], values[entering]
-        self._keep(np.concatenate([self.keys, keys]), np.concatenate([self.values, values]))
+        self._add(keys, values)
 
-    def _keep(self, keys: np.ndarray, values: np.ndarray) -> None:
+    def _add(self, keys: np.ndarray, values: np.ndarray) -> None:
+        if keys.size == 0:
+            return
+        self._keys.append(keys)
+        self._values.append(values)
+        self._buffered += int(keys.size)
+        if self._buffered >= 2 * self.size:
+            self._compact()
+
+    def _compact(self) -> None:
+        if len(self._keys) <= 1 and self._buffered <= self.size:
+            return
+        keys = np.concatenate(self._keys)
+        values = np.concatenate(self._values)
         if keys.size > self.size:
             chosen = np.argpartition(keys, self.size - 1)[: self.size]
             keys, values = keys[chosen], values[chosen]
-        self.keys, self.values = keys, values
+            self._threshold = float(keys.max())
+        self._keys, self._values, self._buffered = [keys], [values], int(keys.size)
 
     def merge(self, other: SampleState) -> SampleState:
         out = SampleState(self.size, seed=int(self._rng.integers(1 << 31)))
-        out._keep(
+        out._add(
             np.concatenate([self.keys, other.keys]), np.concatenate([self.values, other.values])
         )
+        out._compact()
         return out

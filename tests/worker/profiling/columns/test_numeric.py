@@ -99,7 +99,7 @@ def test_anscombe_quartet_shares_means_and_variances():
 
 def test_above_the_bound_quantiles_within_rank_error_and_counts_estimated():
     values = np.random.default_rng(6).normal(size=60_000)
-    options = ProfileOptions(exact_bound=5_000, kll_k=200, sample_size=5_000)
+    options = ProfileOptions(exact_bound=5_000, sample_size=5_000)
     numeric, _ = _numeric(values, options, chunks=12)
     assert numeric["exact"] is False
     error = numeric["rank_error"]
