@@ -6,7 +6,7 @@ from pathlib import Path
 
 from playwright.sync_api import Page, expect
 
-from tests.browser.conftest import screenshot_widths, sign_in
+from tests.browser.conftest import intake_id, screenshot_widths, sign_in
 from tests.browser.landings import write_landings
 
 TIDE = "Gullwick tide-gauge station"
@@ -51,6 +51,11 @@ def test_upload_errors_say_what_to_do(page: Page, live_server: str, tmp_path: Pa
     message = page.locator("#upload-message")
     expect(message).to_contain_text("could not be read", timeout=60_000)
     expect(message).to_contain_text("Check that it is a CSV")
+    # Its intake page says the same and offers to profile it again.
+    page.goto(f"{live_server}/intakes/{intake_id(page, live_server, 'photo.csv')}")
+    expect(page.get_by_role("heading", name="The file could not be profiled")).to_be_visible()
+    expect(page.locator("#progress .error").first).to_contain_text("binary")
+    expect(page.get_by_role("button", name="Profile it again")).to_be_visible()
 
 
 def test_the_drop_zone_works_from_the_keyboard(page: Page, live_server: str, tmp_path: Path):
