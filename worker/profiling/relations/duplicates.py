@@ -132,26 +132,54 @@ class DuplicateState:
         return min((offset for offset, _ in self._parts), default=0)
 
     def _exact(self) -> dict[str, Any]:
+        """Exact count and first examples from the kept hashes.
+
+        One sorted copy of the hashes gives the count (equal neighbours); the
+        examples are then found by scanning the batches in row order against the
+        few repeated hashes, so no per-row table of (hash, row) is ever built and
+        the extra memory is one array of the hashes (8 bytes a row).
+        """
         parts = sorted(self._parts, key=lambda part: part[0])
         if not parts:
             return {"duplicate_rows": 0, "examples": []}
-        hashes = np.concatenate([h for _, h in parts])
-        rows = np.concatenate([np.arange(o, o + len(h), dtype=np.int64) for o, h in parts])
-        series = pl.Series("h", hashes)
-        repeated = len(hashes) - series.n_unique()
+        ordered = np.concatenate([h for _, h in parts])
+        ordered.sort()
+        equal = ordered[1:] == ordered[:-1]
+        repeated = int(np.count_nonzero(equal))
         examples: list[list[int]] = []
         if repeated and self.example_groups:
-            groups = (
-                pl.DataFrame({"h": series, "row": rows})
-                .group_by("h")
-                .agg(pl.col("row").sort().head(self.example_rows), pl.len().alias("size"))
-                .filter(pl.col("size") > 1)
-                .with_columns(pl.col("row").list.first().alias("first"))
-                .sort("first")
-                .head(self.example_groups)
-            )
-            examples = [[int(r) for r in group] for group in groups["row"].to_list()]
-        return {"duplicate_rows": int(repeated), "examples": examples}
+            repeated_hashes = np.unique(ordered[1:][equal])
+            del ordered, equal
+            examples = self._examples(parts, repeated_hashes)
+        return {"duplicate_rows": repeated, "examples": examples}
+
+    def _examples(
+        self, parts: list[tuple[int, np.ndarray]], repeated: np.ndarray
+    ) -> list[list[int]]:
+        """The first ``example_groups`` groups of equal rows (by their first row), each
+        with its first ``example_rows`` row numbers."""
+        chosen: list[int] = []  # hashes of the groups, in order of their first row
+        for _, hashes in parts:
+            hits = hashes[_member(hashes, repeated)]
+            if hits.size:
+                distinct, first = np.unique(hits, return_index=True)
+                for value in distinct[np.argsort(first)][: self.example_groups]:
+                    if int(value) not in chosen:
+                        chosen.append(int(value))
+            if len(chosen) >= self.example_groups:
+                break
+        wanted = np.sort(np.array(chosen[: self.example_groups], dtype=np.uint64))
+        found_rows, found_hashes = [], []
+        for offset, hashes in parts:
+            positions = np.flatnonzero(_member(hashes, wanted))
+            found_rows.append(positions + offset)
+            found_hashes.append(hashes[positions])
+        rows, hashes = np.concatenate(found_rows), np.concatenate(found_hashes)
+        groups = []
+        for value in chosen[: self.example_groups]:
+            members = rows[hashes == np.uint64(value)]
+            groups.append([int(r) for r in np.sort(members)[: self.example_rows]])
+        return groups
 
     def finalize(self) -> dict[str, Any]:
         """{"duplicate_rows", "exact", "examples": [[row numbers (0-based) of one group], ...]}."""
@@ -165,3 +193,9 @@ class DuplicateState:
             "distinct_rows_relative_error": float(self._sketch.relative_error),
             "examples": prefix["examples"],
         }
+
+
+def _member(values: np.ndarray, sorted_set: np.ndarray) -> np.ndarray:
+    """True where ``values`` is in ``sorted_set`` (sorted, non-empty), by binary search."""
+    at = np.minimum(np.searchsorted(sorted_set, values), sorted_set.size - 1)
+    return sorted_set[at] == values

@@ -112,3 +112,14 @@ def test_chunks_merged_equal_one_pass(rows, cut) -> None:
     tail = state_of(frame.iloc[cut:], 5, offset=cut)
     assert tail.merge(head).finalize() == one
     assert one["duplicate_rows"] == int(frame.duplicated().sum())  # pandas
+
+
+def test_examples_are_the_first_groups_with_their_first_rows_as_pandas_groups_them() -> None:
+    frame = text_frame(4000, 4).reset_index(drop=True)
+    options = {"duplicate_examples": 4, "duplicate_example_rows": 2}
+    result = state_of(frame, 300, **options).finalize()
+    # Reference: pandas. Groups of equal rows (NaN equal to NaN), ordered by their first row.
+    repeated = frame[frame.duplicated(keep=False)].fillna("<null>")
+    groups = repeated.groupby(list(frame.columns), sort=False).groups.values()
+    expected = sorted(sorted(int(r) for r in rows)[:2] for rows in groups)[:4]
+    assert result["examples"] == expected
