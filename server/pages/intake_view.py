@@ -53,10 +53,14 @@ def default_baseline(candidates: list[Intake], intake: Intake) -> Intake | None:
 
 
 def drift_view(
-    baseline: dict[str, Any], target: dict[str, Any], settings: Settings
+    baseline: dict[str, Any],
+    target: dict[str, Any],
+    settings: Settings,
+    drift: dict[str, Any] | None = None,
 ) -> dict[str, Any]:
-    """The drift document and the figures that show it."""
-    drift = compare_profiles(baseline, target, thresholds=settings.profiling.thresholds)
+    """The drift document (the stored one, or computed here) and the figures that show it."""
+    if drift is None:
+        drift = compare_profiles(baseline, target, thresholds=settings.profiling.thresholds)
     base_columns = {c.get("name"): c for c in baseline.get("columns") or []}
     target_columns = {c.get("name"): c for c in target.get("columns") or []}
     shifted = sorted(
@@ -108,9 +112,8 @@ def intake_context(session: Session, intake: Intake, settings: Settings) -> dict
     drift = None
     base_doc = cached_profile(session, baseline) if baseline is not None else None
     if base_doc is not None:
-        drift = drift_view(base_doc, profile, settings)
-        if judgement is not None and judgement.drift:
-            drift["document"] = judgement.drift
+        stored = judgement.drift if judgement is not None and judgement.drift else None
+        drift = drift_view(base_doc, profile, settings, stored)
     return {
         "profile": profile,
         "source": profile.get("source") or {},
