@@ -40,6 +40,11 @@ def test_comment_on_a_flag_is_seen_by_another_user(page: Page, new_page, live_se
     comment = colleague.locator(".flag-group .comment-body", has_text=text)
     expect(comment).to_have_count(1)
     expect(colleague.locator(".comment-meta", has_text="demo-reviewer").first).to_be_visible()
+    # The colleague resolves the discussion; it stays, marked resolved.
+    thread = colleague.locator(".discussion", has=colleague.locator(".comment-body", has_text=text))
+    thread.locator("summary").click()
+    thread.get_by_role("button", name="Resolve").click()
+    expect(thread.locator(".comment-meta").first).to_contain_text("resolved by demo-admin")
 
 
 def test_decision_is_recorded_with_its_reason(page: Page, live_server: str) -> None:
