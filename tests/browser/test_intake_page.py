@@ -6,6 +6,7 @@ import csv
 import io
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 from playwright.sync_api import Page, expect
 
@@ -140,3 +141,31 @@ def test_choosing_another_baseline_compares_against_it(page: Page, live_server: 
     drift = page.locator("[data-figure=fig-drift]")
     drift.scroll_into_view_if_needed()
     expect(drift.locator(".main-svg").first).to_be_attached()
+
+
+def test_intake_page_follows_profiling_until_the_result(page: Page, live_server: str) -> None:
+    sign_in(page, live_server)
+    rng = np.random.default_rng(8)
+    # Wide enough that profiling takes a moment: 120 invented gauge columns.
+    frame = pd.DataFrame({f"gauge_{i:03d}": rng.normal(5, 1, 8000).round(3) for i in range(120)})
+    csrf = page.locator("meta[name=csrf-token]").get_attribute("content") or ""
+    answer = page.request.post(
+        f"{live_server}/api/v1/intakes",
+        headers={"X-CSRF-Token": csrf, "Origin": live_server},
+        multipart={
+            "supplier": "Saltmere water-quality lab",
+            "file": {
+                "name": "gauges.csv",
+                "mimeType": "text/csv",
+                "buffer": frame.to_csv(index=False).encode(),
+            },
+        },
+    )
+    assert answer.status == 201, answer.text()
+    page.goto(f"{live_server}/intakes/{answer.json()['id']}")
+    # Profiling such a file takes seconds; the page, opened at once, shows its progress.
+    expect(page.locator("#job-progress")).to_be_visible()
+    expect(page.locator("#job-text")).to_contain_text(" %")
+    # The page reloads itself when the worker is done: no manual reload.
+    expect(page.get_by_role("heading", name="Verdict")).to_be_visible(timeout=120_000)
+    expect(page.locator("article.card")).to_have_count(120)
