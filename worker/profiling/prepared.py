@@ -58,6 +58,8 @@ class PreparedBatch:
     ``text``: every text column, trimmed text, null where missing (a superset of ``labels``).
     ``missing_counts``: every column, how its missing cells are missing.
     ``padded``: every column, how many present cells had leading or trailing whitespace.
+    ``encoded``: label columns whose labels were dictionary-encoded while preparing them
+    (the same labels as ``labels``), so later steps need not hash them again.
     """
 
     raw: pa.RecordBatch
@@ -68,6 +70,7 @@ class PreparedBatch:
     text: dict[str, pa.Array] = field(default_factory=dict)
     missing_counts: dict[str, MissingCounts] = field(default_factory=dict)
     padded: dict[str, int] = field(default_factory=dict)
+    encoded: dict[str, pa.DictionaryArray] = field(default_factory=dict)
 
     @property
     def num_rows(self) -> int:
@@ -204,19 +207,26 @@ class PreparedColumn:
     text: pa.Array | None = None
     padded: int = 0
     label_counts: pa.StructArray | None = None  # value_counts of the labels, when known
+    encoded: pa.DictionaryArray | None = None  # the labels dictionary-encoded, when known
 
 
 def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
     """A label column whose labels need no trimming and hold no missing token, else None.
 
-    Labels repeat, so the checks run on the distinct labels of the batch (from
-    Arrow's ``value_counts``, which the label counts reuse), not on every cell.
+    Labels repeat, so the checks run on the distinct labels of the batch, not on
+    every cell. One dictionary encoding gives both the label counts (a bincount
+    of its indices, in order of first appearance as ``value_counts`` gives them)
+    and the codes the across-column counts use, so the labels are hashed once.
     """
-    counted = pc.value_counts(column)
-    values = counted.field("values")
-    if values.null_count:
-        counted = counted.filter(pc.is_valid(values))
-        values = counted.field("values")
+    encoded = pc.dictionary_encode(column)
+    values = encoded.dictionary
+    indices = encoded.indices
+    if indices.null_count:
+        indices = indices.drop_null()
+    tally = np.bincount(indices.to_numpy(zero_copy_only=False), minlength=len(values))
+    counted = pa.StructArray.from_arrays(
+        [values, pa.array(tally, pa.int64())], names=["values", "counts"]
+    )
     trimmed = pc.ascii_trim_whitespace(values)
     if len(values) and (
         pc.any(pc.not_equal(pc.binary_length(trimmed), pc.binary_length(values))).as_py()
@@ -230,6 +240,7 @@ def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
         labels=column,
         text=column,
         label_counts=counted,
+        encoded=encoded,
     )
 
 
@@ -288,6 +299,7 @@ def assemble_batch(
         text={name: c.text for name, c in columns.items() if c.text is not None},
         missing_counts={name: c.counts for name, c in columns.items()},
         padded={name: c.padded for name, c in columns.items()},
+        encoded={name: c.encoded for name, c in columns.items() if c.encoded is not None},
     )
 
 

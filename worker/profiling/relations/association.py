@@ -42,8 +42,10 @@ class LabelIndex:
         return found
 
     def encode(self, array: pa.Array, bound: int) -> np.ndarray | None:
-        """Global codes per row (-1 where null), or None once the column passes ``bound``."""
-        encoded = pc.dictionary_encode(array)
+        """Global codes per row (-1 where null), or None once the column passes ``bound``.
+
+        ``array`` is text, or text already dictionary-encoded (then used as is)."""
+        encoded = array if pa.types.is_dictionary(array.type) else pc.dictionary_encode(array)
         if isinstance(encoded, pa.ChunkedArray):
             encoded = encoded.combine_chunks()
         dictionary = encoded.dictionary.to_pylist()

@@ -68,7 +68,9 @@ class RelationsState:
         self.sample.update(numbers, batch.offset)
         codes = self.codes.encode(
             {
-                name: batch.labels[name] if name in batch.labels else pa.nulls(rows, pa.string())
+                name: batch.encoded.get(name, batch.labels[name])
+                if name in batch.labels
+                else pa.nulls(rows, pa.string())
                 for name in self.labels
             }
         )
