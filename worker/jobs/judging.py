@@ -131,8 +131,32 @@ def judge_quietly(session: Session, intake: Intake, settings: Settings) -> None:
         log.exception("judging intake %s failed; its profile is kept unjudged", intake.id)
 
 
-FOLLOWERS_MAX = 20
-"""Most later intakes judged again when a decision changes their default baseline."""
+REJUDGE_MAX = 20
+"""Most intakes judged again at once after a decision or a new rules version."""
+
+
+def _rejudge_undecided(
+    session: Session, candidates: list[Intake], settings: Settings, *, keep_chosen: bool
+) -> list[int]:
+    """Judge again the ``candidates`` that have a judgement and no decision yet.
+
+    A decided intake keeps the judgement its decision was made on. With
+    ``keep_chosen``, intakes whose baseline a person chose are left alone too.
+    At most REJUDGE_MAX are judged, in the order given.
+    """
+    decisions = latest_decisions(session, [i.id for i in candidates])
+    judged: list[int] = []
+    for intake in candidates:
+        if len(judged) >= REJUDGE_MAX:
+            break
+        if intake.id in decisions:
+            continue
+        judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
+        if judgement is None or (keep_chosen and judgement.baseline_chosen):
+            continue
+        judge(session, intake, settings)
+        judged.append(intake.id)
+    return judged
 
 
 def rejudge_followers(session: Session, decided: Intake, settings: Settings) -> list[int]:
@@ -140,7 +164,7 @@ def rejudge_followers(session: Session, decided: Intake, settings: Settings) -> 
 
     A decision on ``decided`` may make it (or stop it being) the last accepted
     intake, which is the default baseline of the deliveries after it. Returns
-    the ids judged again (at most FOLLOWERS_MAX, the oldest first).
+    the ids judged again (at most REJUDGE_MAX, the oldest first).
     """
     later = session.scalars(
         select(Intake)
@@ -151,16 +175,20 @@ def rejudge_followers(session: Session, decided: Intake, settings: Settings) -> 
         )
         .order_by(Intake.created_at, Intake.id)
     ).all()
-    decisions = latest_decisions(session, [i.id for i in later])
-    judged = []
-    for intake in later:
-        if len(judged) >= FOLLOWERS_MAX:
-            break
-        if intake.id in decisions:
-            continue
-        judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
-        if judgement is None or judgement.baseline_chosen:
-            continue
-        judge(session, intake, settings)
-        judged.append(intake.id)
-    return judged
+    return _rejudge_undecided(session, list(later), settings, keep_chosen=True)
+
+
+def rejudge_after_rules(session: Session, supplier_id: int, settings: Settings) -> list[int]:
+    """Check the supplier's undecided intakes against its newest rules version.
+
+    Called when a rules version is saved, so that the deliveries still waiting
+    for a decision are judged by the rules now in force; decided intakes keep
+    the version their decision was made on. Returns the ids judged again (at
+    most REJUDGE_MAX, the newest first); older ones can be judged one by one.
+    """
+    intakes = session.scalars(
+        select(Intake)
+        .where(Intake.supplier_id == supplier_id)
+        .order_by(Intake.created_at.desc(), Intake.id.desc())
+    ).all()
+    return _rejudge_undecided(session, list(intakes), settings, keep_chosen=False)

@@ -11,15 +11,16 @@ from datetime import datetime
 from typing import Any
 
 import yaml
-from fastapi import APIRouter, status
+from fastapi import APIRouter, Query, status
 from pydantic import BaseModel, Field
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
-from server.api.deps import CurrentUser, IntakeDep, RequireAdmin, SessionDep
+from server.api.deps import CurrentUser, IntakeDep, RequireAdmin, SessionDep, SettingsDep
 from server.api.errors import ApiError
 from server.store import Supplier
 from server.store.reviews import SupplierRules, latest_rules, save_rules
+from worker.jobs.judging import rejudge_after_rules
 from worker.profiling.judgement import RulesError, draft_rules, parse_rules
 
 router = APIRouter(tags=["rules"])
@@ -43,6 +44,14 @@ class RulesOut(BaseModel):
     note: str
     created_by: str
     created_at: datetime
+
+
+class SavedRules(RulesOut):
+    """A newly saved version, with the undecided intakes checked against it."""
+
+    rejudged: list[int] = Field(
+        description="Undecided intakes of the supplier judged again with this version."
+    )
 
 
 class Problem(BaseModel):
@@ -133,18 +142,31 @@ def rules_version(
 
 @router.put(
     "/suppliers/{supplier_id}/rules",
-    response_model=RulesOut,
+    response_model=SavedRules,
     status_code=status.HTTP_201_CREATED,
     dependencies=[RequireAdmin],
 )
-def put_rules(supplier_id: int, body: RulesIn, session: SessionDep, user: CurrentUser) -> RulesOut:
+def put_rules(
+    supplier_id: int,
+    body: RulesIn,
+    session: SessionDep,
+    settings: SettingsDep,
+    user: CurrentUser,
+    rejudge: bool = Query(
+        True,
+        description="Judge the supplier's undecided intakes again with the new version "
+        "(decided intakes keep the version their decision was made on).",
+    ),
+) -> SavedRules:
     """Save the document as the supplier's next rules version (admins)."""
     _supplier(session, supplier_id)
     rules = save_rules(
         session, supplier_id, _validated(body.document), author=user.name, note=body.note
     )
+    session.flush()
+    rejudged = rejudge_after_rules(session, supplier_id, settings) if rejudge else []
     session.commit()
-    return _out(rules)
+    return SavedRules(**_out(rules).model_dump(), rejudged=rejudged)
 
 
 @router.post("/rules/validate", response_model=Validation)

@@ -92,3 +92,29 @@ def test_draft_from_an_intake_saves_and_is_kept(api) -> None:
     assert judgement["rules_version"] == 1
     assert all(r["passed"] for r in judgement["rule_results"])
     assert judgement["score"]["dimensions"]["conformance"] == 100
+
+
+def test_saving_rules_judges_the_undecided_intakes_again(api) -> None:
+    client, _settings = api
+    supplier = new_supplier(client)
+    decided = deliver(client, supplier["id"], crates_csv(8), "week-08.csv")
+    waiting = deliver(client, supplier["id"], crates_csv(9), "week-09.csv")
+    accepted = client.post(
+        f"/api/v1/intakes/{decided['id']}/decisions", json={"verdict": "accepted"}
+    )
+    assert accepted.status_code == 201, accepted.text
+    # Weights are about 18 kg, so a maximum of 10 kg is broken by both deliveries.
+    strict = {"columns": {"weight_kg": {"max": 10}}}
+    url = f"/api/v1/suppliers/{supplier['id']}/rules"
+    saved = client.put(url, json={"document": strict})
+    assert saved.status_code == 201, saved.text
+    assert saved.json()["rejudged"] == [waiting["id"]]
+    now = client.get(f"/api/v1/intakes/{waiting['id']}/judgement").json()
+    assert now["rules_version"] == 1
+    assert "columns.weight_kg.max" in {r["rule"] for r in now["rule_results"] if not r["passed"]}
+    kept = client.get(f"/api/v1/intakes/{decided['id']}/judgement").json()
+    assert kept["rules_version"] is None  # judged before any rules; its decision stands on that
+    # Asked not to, saving leaves the judgements as they were.
+    again = client.put(f"{url}?rejudge=false", json={"document": {"rows": {"min": 1}}})
+    assert again.status_code == 201 and again.json()["rejudged"] == []
+    assert client.get(f"/api/v1/intakes/{waiting['id']}/judgement").json()["rules_version"] == 1
