@@ -4,10 +4,13 @@ Every value gets an independent uniform key; the sample is the ``size`` values
 with the smallest keys, so the union of two samples cut to ``size`` is again a
 uniform sample of the union of their streams.
 
-Values whose key cannot enter (at or above the largest key kept) are dropped at
-once; the others are buffered and the buffer is cut back to ``size`` only when
-it holds twice as many, so a value costs one random draw and one comparison
-instead of a partition of the whole sample per batch.
+Once the sample is full, only keys below the largest key kept (τ) can enter.
+Rather than drawing a key for every value and comparing, a batch of b values
+draws how many enter, c ~ Binomial(b, τ), which of them (c positions chosen
+uniformly without replacement) and their keys (uniform below τ): the same
+distribution as iid uniform keys filtered by τ, at a cost that grows with the
+c entering values, not with b. Entering values are buffered and the buffer is
+cut back to ``size`` only when it holds twice as many.
 
 References: E. Cohen and H. Kaplan, "Summarizing data using bottom-k sketches", PODC 2007.
 """
@@ -42,11 +45,14 @@ class SampleState:
     def update(self, values: np.ndarray) -> None:
         if values.size == 0:
             return
-        keys = self._rng.random(values.size)
-        if self._threshold < np.inf:
-            entering = keys < self._threshold
-            keys, values = keys[entering], values[entering]
-        self._add(keys, values)
+        if self._threshold == np.inf:
+            self._add(self._rng.random(values.size), values)
+            return
+        entering = int(self._rng.binomial(values.size, self._threshold))
+        if entering == 0:
+            return
+        positions = self._rng.choice(values.size, size=entering, replace=False)
+        self._add(self._rng.random(entering) * self._threshold, values[positions])
 
     def _add(self, keys: np.ndarray, values: np.ndarray) -> None:
         if keys.size == 0:
