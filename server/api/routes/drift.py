@@ -14,6 +14,7 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.api.deps import CurrentUser, IntakeDep, SessionDep, SettingsDep
+from server.api.drift_schema import DriftOut
 from server.api.errors import ApiError
 from server.security.masking import visible_profile
 from server.store import Intake
@@ -72,7 +73,7 @@ def masked_drift(
     return {**drift, "columns": columns, "flags": flags}
 
 
-@router.get("/drift")
+@router.get("/drift", response_model=DriftOut)
 def get_drift(
     intake: IntakeDep,
     session: SessionDep,

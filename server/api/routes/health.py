@@ -11,6 +11,7 @@ from fastapi.responses import JSONResponse
 from sqlalchemy import text
 
 from server.api.deps import SettingsDep
+from server.api.document_schema import Health
 from server.settings import Settings
 from server.store import get_engine, schema
 
@@ -68,7 +69,7 @@ def _storage(settings: Settings) -> dict[str, Any]:
     return {"state": "ok", "free_bytes": usage.free}
 
 
-@router.get("/healthz")
+@router.get("/healthz", responses={200: {"model": Health}, 503: {"model": Health}})
 def health(settings: SettingsDep) -> JSONResponse:
     """200 when database, queue and storage all work, 503 (with the reason) otherwise."""
     checks = {

@@ -23,6 +23,7 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.api.deps import CurrentUser, SessionDep, SettingsDep
+from server.api.drift_schema import DriftOut
 from server.api.errors import ApiError
 from server.api.routes.drift import drift_between
 from server.store import ColumnSummary, Intake, IntakeStatus, Supplier
@@ -109,7 +110,7 @@ class SideBySide(BaseModel):
 
     a: IntakeSide
     b: IntakeSide
-    drift: dict[str, Any]
+    drift: DriftOut
 
 
 def _supplier(session: Session, supplier_id: int) -> Supplier:

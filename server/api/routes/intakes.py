@@ -12,6 +12,7 @@ from sqlalchemy import func, select
 from sqlalchemy.orm import selectinload
 
 from server.api.deps import CurrentUser, FileStoreDep, IntakeDep, SessionDep, SettingsDep
+from server.api.document_schema import ProfileDocument
 from server.api.errors import ApiError
 from server.api.schemas import IntakeOut, IntakePage
 from server.api.uploads import receive_upload
@@ -169,7 +170,9 @@ def get_intake(intake: IntakeDep, user: CurrentUser) -> IntakeOut:
     return IntakeOut.of(intake)
 
 
-@router.get("/{intake_id}/profile", response_class=JSONResponse)
+@router.get(
+    "/{intake_id}/profile", response_class=JSONResponse, responses={200: {"model": ProfileDocument}}
+)
 def get_profile(intake: IntakeDep, session: SessionDep, user: CurrentUser) -> JSONResponse:
     """The intake's profile document (format_version 1), personal values masked unless unmasked."""
     if intake.profile is None:

@@ -14,6 +14,7 @@ from typing import Any
 from fastapi import APIRouter, Query
 
 from server.api.deps import CurrentUser, FileStoreDep, IntakeDep, SessionDep, SettingsDep
+from server.api.document_schema import Crosstab, LabelCount
 from server.api.errors import ApiError
 from server.store import Intake, accounts
 from worker.profiling import queries
@@ -55,7 +56,7 @@ def _where(column: str | None, value: str | None) -> dict[str, str | None] | Non
     return {column: value if value != "" else None}
 
 
-@router.get("/{intake_id}/crosstab")
+@router.get("/{intake_id}/crosstab", response_model=Crosstab)
 def crosstab(
     intake: IntakeDep,
     session: SessionDep,
@@ -84,7 +85,7 @@ def crosstab(
         raise ApiError(422, str(exc), code="bad_query") from exc
 
 
-@router.get("/{intake_id}/labels")
+@router.get("/{intake_id}/labels", response_model=list[LabelCount])
 def labels(
     intake: IntakeDep,
     session: SessionDep,

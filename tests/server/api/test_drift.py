@@ -57,3 +57,20 @@ def test_the_suppliers_rules_may_change_the_thresholds(api) -> None:
     )
     codes = {f["code"] for f in api.get(url, params=params).json()["flags"]}
     assert "stability.volume-change" not in codes
+
+
+def test_renamed_and_retyped_columns_keep_their_field_names(api) -> None:
+    """The typed answer still says "schema" and "from", as the design notes' document does."""
+    supplier = new_supplier(api)
+    first = deliver(api, supplier["id"], crates_csv(5), "w5.csv")
+    api.post(f"/api/v1/intakes/{first['id']}/decisions", json={"verdict": "accepted"})
+    # Same crates, with weight_kg delivered as mass_kg and dock as a number.
+    text = crates_csv(5).decode().replace("weight_kg", "mass_kg", 1)
+    text = text.replace(",north", ",1").replace(",south", ",2")
+    second = deliver(api, supplier["id"], text.encode(), "w6.csv")
+    answer = api.get(f"/api/v1/intakes/{second['id']}/drift")
+    assert answer.status_code == 200, answer.text
+    schema = answer.json()["schema"]
+    assert [(r["from"], r["to"]) for r in schema["renamed"]] == [("weight_kg", "mass_kg")]
+    assert schema["kind_changed"] == [{"name": "dock", "from": "categorical", "to": "numeric"}]
+    assert "from_" not in answer.text
