@@ -89,16 +89,19 @@ def compare_page(
             .limit(500)
         )
     )
-    pair = None
+    pair, drift = None, None
     if a and b and a.isdigit() and b.isdigit():
         pair = history.side_by_side(session, settings, user, int(a), int(b))
+        # The route answers a typed model; the figures and the template read plain dicts.
+        drift = pair.model_dump(mode="json", by_alias=True)["drift"]
     context = {
         "rows": rows,
         "ready": ready,
         "a": int(a) if a and a.isdigit() else None,
         "b": int(b) if b and b.isdigit() else None,
         "pair": pair,
-        "drift_figure": figures.drift_overview_figure(pair.drift) if pair else None,
+        "drift": drift,
+        "drift_figure": figures.drift_overview_figure(drift) if drift else None,
         "user": user,
         "compare": True,
     }
