@@ -160,6 +160,11 @@ class TableProfiler:
             if len(present):
                 state.choose(column, present, self.decimal, self.thousands)
                 decided = True
+        for state in self.columns.values():
+            if state not in undecided and state.reconsider(
+                raw.column(state.name), self.decimal, self.thousands
+            ):
+                decided = True
         if decided:
             self._plan = self._make_plan()
         plan = self._plan

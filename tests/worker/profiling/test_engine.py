@@ -241,3 +241,28 @@ def test_columnar_copy_holds_every_row(tmp_path, planted):
     table = pq.read_table(copy)
     assert table.num_rows == profile["dataset"]["rows"] == 40
     assert table.column_names == [column["name"] for column in profile["columns"]]
+
+
+def test_numbers_that_start_after_the_first_batch_are_parsed():
+    # Invented readings: "pending" until the gauge starts, then numbers (truth by construction).
+    profiler = TableProfiler(["gauge"], ProfileOptions(threads=1), SourceInfo(format="csv"))
+    profiler.update(pa.record_batch({"gauge": pa.array(["pending"] * 50)}))
+    readings = np.round(np.random.default_rng(8).normal(20, 3, 950), 2)
+    for chunk in np.array_split(readings, 5):
+        profiler.update(pa.record_batch({"gauge": pa.array([str(float(v)) for v in chunk])}))
+    gauge = _by_name(profiler.finalize())["gauge"]
+    assert gauge["kind"] == "numeric"
+    assert gauge["kind_evidence"]["mixed_kinds"]["other_share"] == pytest.approx(50 / 1000)
+    assert gauge["count"] == 1000
+    # Reference: numpy on the readings themselves.
+    assert gauge["numeric"]["mean"] == pytest.approx(readings.mean(), rel=1e-12)
+    assert gauge["numeric"]["median"] == pytest.approx(np.median(readings), rel=1e-12)
+
+
+def test_words_in_later_batches_do_not_make_a_text_column_numeric():
+    profiler = TableProfiler(["note"], ProfileOptions(threads=1), SourceInfo(format="csv"))
+    profiler.update(pa.record_batch({"note": pa.array(["calm sea", "swell"] * 20)}))
+    profiler.update(pa.record_batch({"note": pa.array(["fog", "2 knots", "calm sea"] * 20)}))
+    note = _by_name(profiler.finalize())["note"]
+    assert note["kind"] == "categorical"
+    assert note.get("numeric") is None

@@ -22,7 +22,8 @@ from worker.profiling.prepared import is_text_type, parse_numbers
 
 KINDS = ("numeric", "categorical", "boolean", "datetime", "text", "identifier", "empty")
 BOOLEAN_WORDS = frozenset({"true", "false", "yes", "no", "y", "n", "t", "f"})
-_SAMPLE = 2_000
+SAMPLE = 2_000
+"""First values of a batch that candidate parsers are chosen from."""
 _EXAMPLES = 5
 
 
@@ -66,7 +67,7 @@ def choose_candidates(
             typed=str(data_type),
             number_share=1.0 if numeric else 0.0,
         )
-    sample = present.slice(0, _SAMPLE)
+    sample = present.slice(0, SAMPLE)
     numbers = parse_numbers(sample, decimal=decimal, thousands=thousands)
     number_share = float(np.count_nonzero(~np.isnan(numbers))) / max(len(sample), 1)
     numeric = number_share > 0.05
