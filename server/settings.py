@@ -38,6 +38,12 @@ class SecuritySettings(BaseModel):
     failed_sign_in_window_minutes: int = Field(
         15, description="Window over which failed sign-ins are counted (common practice)."
     )
+    trusted_proxies: str = Field(
+        "",
+        description="Comma-separated addresses or networks (CIDR) of reverse proxies whose "
+        "X-Forwarded-For and X-Forwarded-Proto headers are believed, so sign-in throttling "
+        "and the audit log see the real client; empty believes no one.",
+    )
     retention_days: int | None = Field(
         None,
         description="Stored files older than this are purged (profiles are kept); "

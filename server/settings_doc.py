@@ -20,7 +20,7 @@ END = "<!-- end of settings table -->"
 
 
 def _default_text(value: Any) -> str:
-    if value is None:
+    if value is None or value == "":
         return "(empty)"
     if isinstance(value, bool):
         return "true" if value else "false"

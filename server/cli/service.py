@@ -71,7 +71,15 @@ def _serve(args: argparse.Namespace) -> int:
     print(f"Tidewaiter is serving on http://{host}:{port}/ (API docs at /docs)")
     for line in _sign_in_notice(settings):
         print(line)
-    uvicorn.run(create_app(settings), host=host, port=port, log_level=args.log_level)
+    # Proxy headers are believed only from TIDEWAITER_SECURITY__TRUSTED_PROXIES (the app's
+    # own middleware), never by uvicorn's default trust of 127.0.0.1.
+    uvicorn.run(
+        create_app(settings),
+        host=host,
+        port=port,
+        log_level=args.log_level,
+        proxy_headers=False,
+    )
     return 0
 
 

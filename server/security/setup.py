@@ -11,6 +11,7 @@ from urllib.parse import quote
 
 from fastapi import FastAPI, Request
 from fastapi.responses import RedirectResponse, Response
+from uvicorn.middleware.proxy_headers import ProxyHeadersMiddleware
 
 from server.api.errors import error_response
 from server.pages.templating import templates
@@ -43,6 +44,9 @@ def install_security(app: FastAPI, settings: Settings) -> None:
     app.add_middleware(AuditMiddleware, session_scope=lambda: session_scope(settings))
     app.add_middleware(TraversalGuardMiddleware)
     app.add_middleware(SecurityHeadersMiddleware, https=settings.security.https)
+    if settings.security.trusted_proxies.strip():
+        # Outermost, so every layer below sees the client the trusted proxy names.
+        app.add_middleware(ProxyHeadersMiddleware, trusted_hosts=settings.security.trusted_proxies)
 
     @app.exception_handler(SignInRequired)
     async def _sign_in_required(request: Request, exc: SignInRequired) -> Response:

@@ -42,7 +42,10 @@ class Me(BaseModel):
 
 
 def client_address(request: Request) -> str:
-    """The client's address as the server saw it (proxies' headers are not trusted)."""
+    """The client's address: the connecting peer, or the one a trusted proxy forwarded.
+
+    Proxy headers are believed only from TIDEWAITER_SECURITY__TRUSTED_PROXIES.
+    """
     return request.client.host if request.client else "unknown"
 
 

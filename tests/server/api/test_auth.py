@@ -198,3 +198,45 @@ def test_signing_in_again_ends_the_earlier_session(anonymous_client, app_setting
     assert anonymous_client.cookies[SESSION_COOKIE] != first
     anonymous_client.cookies.set(SESSION_COOKIE, first)
     assert anonymous_client.get("/api/v1/auth/me").status_code == 401
+
+
+def _held_after_three(tmp_path, trusted: str, forwarded: list[str]) -> list[int]:
+    """Status codes of sign-ins, each failing one "forwarded" from the given address."""
+    from fastapi.testclient import TestClient
+
+    from server.app import create_app
+    from server.store import schema
+
+    settings = make_settings(
+        tmp_path / "data",
+        security={
+            "max_failed_sign_ins": 100,
+            "max_failed_sign_ins_per_address": 3,
+            "trusted_proxies": trusted,
+        },
+    )
+    schema.upgrade(settings.resolved_database_url)
+    codes = []
+    with TestClient(create_app(settings)) as client:
+        for address in forwarded:
+            answer = client.post(
+                "/api/v1/auth/sign-in",
+                json={"name": "nobody", "password": "x"},
+                headers={"X-Forwarded-For": address},
+            )
+            codes.append(answer.status_code)
+    return codes
+
+
+def test_forwarded_addresses_count_only_from_a_trusted_proxy(tmp_path) -> None:
+    """Behind a trusted proxy each client is throttled on its own; otherwise by the peer."""
+    addresses = ["203.0.113.7", "203.0.113.8", "203.0.113.9", "203.0.113.10", "203.0.113.7"]
+    # "testclient" is the peer address Starlette's TestClient reports.
+    behind = _held_after_three(tmp_path / "behind", "testclient", addresses)
+    assert behind == [401, 401, 401, 401, 401]
+    # Without trust the forged header is ignored: all five come from one peer.
+    untrusted = _held_after_three(tmp_path / "open", "", addresses)
+    assert untrusted == [401, 401, 401, 429, 429]
+    # A trusted proxy passing on one client's many tries still holds that client back.
+    same = _held_after_three(tmp_path / "one", "testclient", ["198.51.100.4"] * 4)
+    assert same == [401, 401, 401, 429]
