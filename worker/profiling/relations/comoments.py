@@ -18,6 +18,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -67,6 +68,16 @@ class ShiftedBatch:
     z: np.ndarray
     shift: np.ndarray
 
+    @cached_property
+    def weights(self) -> np.ndarray:
+        """``valid`` as 0.0/1.0, computed once for every state that multiplies by it."""
+        return self.valid.astype(np.float64)
+
+    @cached_property
+    def squares(self) -> np.ndarray:
+        """z², computed once for every state that needs it."""
+        return self.z * self.z
+
     @classmethod
     def of(cls, numbers: Mapping[str, np.ndarray], names: list[str]) -> ShiftedBatch:
         rows = len(numbers[names[0]]) if names else 0
@@ -104,13 +115,13 @@ class CoMoments:
 
     def update_shifted(self, batch_values: ShiftedBatch) -> None:
         """Add one batch already shifted by its column means (shared with other states)."""
-        valid, z, shift = batch_values.valid, batch_values.z, batch_values.shift
+        z, shift = batch_values.z, batch_values.shift
         if z.shape[0] == 0:
             return
-        w = valid.astype(np.float64)
+        w = batch_values.weights
         counts = w.T @ w  # [i, j]: rows where both are present
         sums = z.T @ w  # [i, j]: Σ z_i over rows where j (and so i) are present
-        squares = (z * z).T @ w
+        squares = batch_values.squares.T @ w
         cross = z.T @ z
         with np.errstate(invalid="ignore", divide="ignore"):
             inner_mean = np.where(counts > 0, sums / counts, 0.0)
