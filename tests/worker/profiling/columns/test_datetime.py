@@ -3,8 +3,10 @@
 import datetime as dt
 
 import pyarrow as pa
+import pyarrow.compute as pc
+import pytest
 
-from worker.profiling.columns.datetime import DatetimeState, candidate_formats
+from worker.profiling.columns.datetime import DatetimeState, candidate_formats, parse_dates
 
 NOW = dt.datetime(2026, 1, 1, tzinfo=dt.UTC).timestamp()
 
@@ -50,3 +52,22 @@ def test_iso_granularity_future_and_histogram():
     assert sum(result["histogram"]["counts"]) == 3
     months = _state(["2025-01-01", "2025-03-01", "2025-07-01"])
     assert months["granularity"] == "month"
+
+
+@pytest.mark.parametrize(
+    "values",
+    [
+        ["2025-03-01", "1999-12-31", None, "2024-02-29"],
+        ["2025-03-01", "2025-02-30"],  # a day past the month's end: strptime's reading
+        ["2025-03-01", "2025/03/01", "01-03-2025"],
+        ["2025-03-01", "2025-3-1"],
+    ],
+)
+def test_iso_dates_read_as_strptime_reads_them(values):
+    text = pa.array(values, pa.string())
+    # Reference: Arrow's strptime, the general parser the fast ISO path stands in for.
+    expected = pc.strptime(text, format="%Y-%m-%d", unit="s", error_is_null=True)
+    assert parse_dates(text, "%Y-%m-%d").equals(expected)
+    # And Python's own datetime.strptime for the plain dates.
+    parsed = parse_dates(text, "%Y-%m-%d").to_pylist()
+    assert parsed[0] == dt.datetime.strptime("2025-03-01", "%Y-%m-%d")
