@@ -15,6 +15,7 @@ from typing import Any
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.responses import JSONResponse
+from sqlalchemy.exc import DataError
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 log = logging.getLogger(__name__)
@@ -75,6 +76,19 @@ def install_error_handlers(app: FastAPI) -> None:
         summary = "; ".join(f"{p['field']}: {p['message']}" for p in problems)
         return error_response(
             422, f"invalid request ({summary})", "invalid_request", errors=problems
+        )
+
+    @app.exception_handler(DataError)
+    @app.exception_handler(OverflowError)
+    async def _out_of_range(_request: Request, exc: Exception) -> JSONResponse:
+        # A number or text in the request that the database cannot hold (an id beyond
+        # PostgreSQL's 32-bit integers or SQLite's 64 bits, a NUL character): bad input.
+        log.info("request value the database cannot hold: %s", exc)
+        return error_response(
+            422,
+            "a value in the request cannot be stored: a number beyond the range of ids "
+            "(below 2147483648) or text with a character the database refuses (NUL)",
+            "out_of_range",
         )
 
     @app.exception_handler(Exception)
