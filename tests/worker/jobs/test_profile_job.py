@@ -156,7 +156,8 @@ def test_progress_reaches_the_intake_row(
             release.wait(0.05)
     finally:
         release.set()
-        job.join()
+        job.join(timeout=60)
+    assert not job.is_alive(), "the profiling job did not finish"
     assert ("reading", 0.5) in seen
 
 
