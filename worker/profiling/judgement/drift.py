@@ -177,11 +177,35 @@ def _rename_bound(base: dict[str, Any], target: dict[str, Any], t: FlagThreshold
     return max(t.rename_max_distance, KS_CRITICAL_5 * ((n + m) / (n * m)) ** 0.5)
 
 
+def _label_rename_bound(base: dict[str, Any], target: dict[str, Any], t: FlagThresholds) -> float:
+    """Largest Jensen-Shannon distance (base 2) still taken for the same label column.
+
+    For two samples of one distribution over k labels, the equal-weight
+    Jensen-Shannon divergence in nats is close to X² / (8·n·m/(n+m)), where X²
+    is Pearson's homogeneity statistic with k - 1 degrees of freedom (a second
+    order expansion of the divergence around the pooled shares; Lin 1991 for
+    the divergence, Pearson 1900 for X²). The 95 % point of that chi-square
+    gives the room sampling noise alone needs, so modest files are not held to
+    a bound only large files can meet.
+    """
+    n, m = int(base.get("count") or 0), int(target.get("count") or 0)
+    labels = {str(i["value"]) for c in (base, target) for i in _top_labels(c)}
+    if n == 0 or m == 0 or len(labels) < 2:
+        return t.rename_max_distance
+    critical = stats.chi2.ppf(0.95, len(labels) - 1)
+    noise = (critical / (8 * np.log(2) * n * m / (n + m))) ** 0.5
+    return max(t.rename_max_distance, float(noise))
+
+
+def _top_labels(column: dict[str, Any]) -> list[dict[str, Any]]:
+    return (column.get("labels") or {}).get("top") or []
+
+
 def _match_key(column: dict[str, Any]) -> tuple[str, Any] | None:
     """What the cheap rename pre-test compares: quartiles (numeric) or listed labels."""
     family = _family(column.get("kind"))
     if family == "labels":
-        return family, {str(i["value"]) for i in (column.get("labels") or {}).get("top") or []}
+        return family, {str(i["value"]) for i in _top_labels(column)}
     if family == "numeric" and usable_numeric(column):
         percentiles = column["numeric"]["percentiles"]
         return family, (percentiles[25], percentiles[75])
@@ -212,7 +236,7 @@ def _renames(
     """Pairs (removed, added) whose distributions match: the same column under a new name.
 
     A numeric pair matches when its KS distance is within ``_rename_bound``, a
-    label pair when its Jensen-Shannon distance is within the threshold; each
+    label pair when its Jensen-Shannon distance is within ``_label_rename_bound``; each
     column is matched at most once, closest pairs first, and only when no
     other column fits nearly as well (a rival within twice the distance makes
     the pair too ambiguous to call). At most RENAME_PAIRS_MAX pairs are
@@ -227,7 +251,7 @@ def _renames(
     for old, new in pairs[:RENAME_PAIRS_MAX]:
         distance = _distance(old, new, t)
         numeric = _family(old.get("kind")) == "numeric"
-        bound = _rename_bound(old, new, t) if numeric else t.rename_max_distance
+        bound = _rename_bound(old, new, t) if numeric else _label_rename_bound(old, new, t)
         if distance is not None and distance <= bound:
             candidates.append((distance, old["name"], new["name"], new.get("kind"), numeric))
     by_column: dict[tuple[str, str], list[float]] = {}

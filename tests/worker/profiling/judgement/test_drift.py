@@ -199,3 +199,25 @@ def test_columns_without_usable_percentiles_are_compared_by_what_they_have() -> 
     column = _column(compare_profiles(base, target, thresholds=T), "x")
     assert column["psi"] is None and column["ks"] is None
     assert column["mean_shift_sd"] == pytest.approx(1 / np.std([1, 2, 3, 4, 5], ddof=1))
+
+
+def test_a_rename_of_a_label_column_is_found_within_sampling_noise() -> None:
+    rng = _rng()
+    codes = [f"BB-{i:03d}" for i in range(1, 19)]
+    base = profile_of([label_column("vessel", rng.choice(codes, 600).tolist())])
+    target = profile_of([label_column("vessel_code", rng.choice(codes, 600).tolist())])
+    (rename,) = compare_profiles(base, target, thresholds=T)["schema"]["renamed"]
+    assert (rename["from"], rename["to"]) == ("vessel", "vessel_code")
+    # Sampling noise alone: X² with 17 degrees of freedom (95 % point from scipy.stats.chi2)
+    # over 8·ln 2·n·m/(n+m), the second-order expansion of the Jensen-Shannon divergence.
+    noise = (stats.chi2.ppf(0.95, 17) / (8 * np.log(2) * 300)) ** 0.5
+    assert T.rename_max_distance < rename["evidence"]["js_distance"] <= noise
+
+
+def test_label_columns_with_other_shares_are_not_taken_for_a_rename() -> None:
+    rng = _rng()
+    codes = [f"BB-{i:03d}" for i in range(1, 19)]
+    skewed = np.r_[np.full(9, 0.1), np.full(9, 0.1 / 9)]
+    base = profile_of([label_column("vessel", rng.choice(codes, 600).tolist())])
+    target = profile_of([label_column("vessel_code", rng.choice(codes, 600, p=skewed).tolist())])
+    assert compare_profiles(base, target, thresholds=T)["schema"]["renamed"] == []
