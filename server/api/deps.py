@@ -8,6 +8,7 @@
 from __future__ import annotations
 
 from collections.abc import Iterator
+from pathlib import Path
 from typing import Annotated
 
 from fastapi import Depends, Request
@@ -17,7 +18,7 @@ from server.api.errors import ApiError
 from server.security.access import User, principal_for, require
 from server.security.csrf import SAFE_METHODS
 from server.settings import Settings
-from server.store import FileStore, Intake, file_store, session_factory
+from server.store import FileStore, Intake, Supplier, file_store, session_factory
 from server.store.accounts import Role
 
 
@@ -103,3 +104,27 @@ def get_intake(intake_id: int, session: SessionDep) -> Intake:
 
 
 IntakeDep = Annotated[Intake, Depends(get_intake)]
+
+
+def find_supplier(session: Session, supplier_id: int) -> Supplier:
+    """The supplier ``supplier_id``, or a 404 naming it."""
+    supplier = session.get(Supplier, supplier_id)
+    if supplier is None:
+        raise ApiError(404, f"there is no supplier {supplier_id}", code="not_found")
+    return supplier
+
+
+def columnar_copy(intake: Intake, store: FileStore) -> Path:
+    """The intake's columnar copy, which previews and queries read; a clear error without it."""
+    if intake.profile is None:
+        raise ApiError(409, f"intake {intake.id} has no profile yet", code="not_ready")
+    if intake.file_key is None:
+        raise ApiError(410, f"the file of intake {intake.id} has been purged", code="gone")
+    path = store.columnar_path(intake.file_key)
+    if not path.exists():
+        raise ApiError(
+            409,
+            f"intake {intake.id} has no columnar copy; profile it again to answer questions",
+            code="no_columnar_copy",
+        )
+    return path

@@ -22,7 +22,7 @@ from pydantic import BaseModel, Field
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
-from server.api.deps import CurrentUser, SessionDep, SettingsDep
+from server.api.deps import CurrentUser, SessionDep, SettingsDep, find_supplier
 from server.api.drift_schema import DriftOut
 from server.api.errors import ApiError
 from server.api.routes.drift import drift_between
@@ -113,13 +113,6 @@ class SideBySide(BaseModel):
     drift: DriftOut
 
 
-def _supplier(session: Session, supplier_id: int) -> Supplier:
-    supplier = session.get(Supplier, supplier_id)
-    if supplier is None:
-        raise ApiError(404, f"there is no supplier {supplier_id}", code="not_found")
-    return supplier
-
-
 def _judgements(session: Session, intake_ids: list[int]) -> dict[int, Judgement]:
     if not intake_ids:
         return {}
@@ -146,7 +139,7 @@ def _intakes(session: Session, supplier_id: int) -> list[Intake]:
 @router.get("/suppliers/{supplier_id}/timeline", response_model=list[TimelineEntry])
 def timeline(supplier_id: int, session: SessionDep, user: CurrentUser) -> list[TimelineEntry]:
     """The supplier's deliveries, oldest first."""
-    _supplier(session, supplier_id)
+    find_supplier(session, supplier_id)
     intakes = _intakes(session, supplier_id)
     ids = [i.id for i in intakes]
     judgements, decisions = _judgements(session, ids), latest_decisions(session, ids)
@@ -175,7 +168,7 @@ def column_history(
     supplier_id: int, column: str, session: SessionDep, user: CurrentUser
 ) -> list[ColumnPoint]:
     """One column's figures over the supplier's deliveries that have it, oldest first."""
-    _supplier(session, supplier_id)
+    find_supplier(session, supplier_id)
     rows = session.execute(
         select(ColumnSummary, Intake.created_at)
         .join(Intake, Intake.id == ColumnSummary.intake_id)
@@ -240,7 +233,7 @@ def compare_suppliers(
 ) -> list[SupplierRow]:
     """The suppliers side by side: deliveries, scores, share accepted, recurring flags."""
     if supplier:
-        chosen = [_supplier(session, s) for s in supplier]
+        chosen = [find_supplier(session, s) for s in supplier]
     else:
         chosen = list(session.scalars(select(Supplier).order_by(Supplier.name)))
     return [_supplier_row(session, s) for s in chosen]

@@ -13,7 +13,14 @@ from typing import Any
 
 from fastapi import APIRouter, Query
 
-from server.api.deps import CurrentUser, FileStoreDep, IntakeDep, SessionDep, SettingsDep
+from server.api.deps import (
+    CurrentUser,
+    FileStoreDep,
+    IntakeDep,
+    SessionDep,
+    SettingsDep,
+    columnar_copy,
+)
 from server.api.document_schema import Crosstab, LabelCount
 from server.api.errors import ApiError
 from server.store import Intake, accounts
@@ -21,21 +28,6 @@ from worker.profiling import queries
 from worker.profiling.personal import personal_columns
 
 router = APIRouter(prefix="/intakes", tags=["queries"])
-
-
-def _copy_path(intake: Intake, store: FileStoreDep) -> Any:
-    if intake.profile is None:
-        raise ApiError(409, f"intake {intake.id} has no profile yet", code="not_ready")
-    if intake.file_key is None:
-        raise ApiError(410, f"the file of intake {intake.id} has been purged", code="gone")
-    path = store.columnar_path(intake.file_key)
-    if not path.exists():
-        raise ApiError(
-            409,
-            f"intake {intake.id} has no columnar copy; profile it again to answer questions",
-            code="no_columnar_copy",
-        )
-    return path
 
 
 def _check_visible(session: SessionDep, intake: Intake, names: list[str]) -> None:
@@ -70,7 +62,7 @@ def crosstab(
     max_labels: int = Query(30, ge=2, le=200),
 ) -> dict[str, Any]:
     """Counts, row shares, chi-square and adjusted residuals of ``a`` × ``b`` within the filter."""
-    path = _copy_path(intake, store)
+    path = columnar_copy(intake, store)
     _check_visible(session, intake, [a, b, *([where_column] if where_column else [])])
     try:
         return queries.crosstab(
@@ -96,7 +88,7 @@ def labels(
     limit: int = Query(50, ge=1, le=500),
 ) -> list[dict[str, Any]]:
     """The column's labels with their counts, most frequent first (for filter choices)."""
-    path = _copy_path(intake, store)
+    path = columnar_copy(intake, store)
     _check_visible(session, intake, [column])
     try:
         return queries.label_counts(path, column, None, limit=limit, options=settings.profiling)

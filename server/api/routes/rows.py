@@ -13,7 +13,14 @@ from typing import Any
 from fastapi import APIRouter, Query
 from pydantic import BaseModel
 
-from server.api.deps import CurrentUser, FileStoreDep, IntakeDep, SessionDep, SettingsDep
+from server.api.deps import (
+    CurrentUser,
+    FileStoreDep,
+    IntakeDep,
+    SessionDep,
+    SettingsDep,
+    columnar_copy,
+)
 from server.api.errors import ApiError
 from server.store import accounts
 from worker.profiling import queries
@@ -50,13 +57,7 @@ def preview_rows(
             "(setting TIDEWAITER_SECURITY__PREVIEW_ROWS_LIMIT)",
             code="too_many_rows",
         )
-    if intake.profile is None:
-        raise ApiError(409, f"intake {intake.id} has no profile yet", code="not_ready")
-    if intake.file_key is None:
-        raise ApiError(410, f"the file of intake {intake.id} has been purged", code="gone")
-    path = store.columnar_path(intake.file_key)
-    if not path.exists():
-        raise ApiError(409, f"intake {intake.id} has no columnar copy", code="no_columnar_copy")
+    path = columnar_copy(intake, store)
     kinds = personal_columns(intake.profile.document)
     if accounts.is_unmasked(session, intake.id):
         kinds = {}

@@ -14,11 +14,16 @@ import yaml
 from fastapi import APIRouter, Query, status
 from pydantic import BaseModel, Field
 from sqlalchemy import select
-from sqlalchemy.orm import Session
 
-from server.api.deps import CurrentUser, IntakeDep, RequireAdmin, SessionDep, SettingsDep
+from server.api.deps import (
+    CurrentUser,
+    IntakeDep,
+    RequireAdmin,
+    SessionDep,
+    SettingsDep,
+    find_supplier,
+)
 from server.api.errors import ApiError
-from server.store import Supplier
 from server.store.reviews import SupplierRules, latest_rules, save_rules
 from worker.jobs.judging import rejudge_after_rules
 from worker.profiling.judgement import RulesError, draft_rules, parse_rules
@@ -78,13 +83,6 @@ class Draft(BaseModel):
     yaml: str
 
 
-def _supplier(session: Session, supplier_id: int) -> Supplier:
-    supplier = session.get(Supplier, supplier_id)
-    if supplier is None:
-        raise ApiError(404, f"there is no supplier {supplier_id}", code="not_found")
-    return supplier
-
-
 def _out(rules: SupplierRules) -> RulesOut:
     return RulesOut.model_validate(rules, from_attributes=True)
 
@@ -103,7 +101,7 @@ def _validated(document: dict[str, Any] | str) -> dict[str, Any]:
 @router.get("/suppliers/{supplier_id}/rules", response_model=RulesOut)
 def current_rules(supplier_id: int, session: SessionDep, user: CurrentUser) -> RulesOut:
     """The supplier's current rules (the newest version)."""
-    _supplier(session, supplier_id)
+    find_supplier(session, supplier_id)
     rules = latest_rules(session, supplier_id)
     if rules is None:
         raise ApiError(404, f"supplier {supplier_id} has no rules yet", code="no_rules")
@@ -113,7 +111,7 @@ def current_rules(supplier_id: int, session: SessionDep, user: CurrentUser) -> R
 @router.get("/suppliers/{supplier_id}/rules/versions", response_model=list[RulesOut])
 def rules_versions(supplier_id: int, session: SessionDep, user: CurrentUser) -> list[RulesOut]:
     """Every saved version of the supplier's rules, newest first."""
-    _supplier(session, supplier_id)
+    find_supplier(session, supplier_id)
     rows = session.scalars(
         select(SupplierRules)
         .where(SupplierRules.supplier_id == supplier_id)
@@ -127,7 +125,7 @@ def rules_version(
     supplier_id: int, version: int, session: SessionDep, user: CurrentUser
 ) -> RulesOut:
     """One saved version of the supplier's rules."""
-    _supplier(session, supplier_id)
+    find_supplier(session, supplier_id)
     rules = session.scalar(
         select(SupplierRules).where(
             SupplierRules.supplier_id == supplier_id, SupplierRules.version == version
@@ -159,7 +157,7 @@ def put_rules(
     ),
 ) -> SavedRules:
     """Save the document as the supplier's next rules version (admins)."""
-    _supplier(session, supplier_id)
+    find_supplier(session, supplier_id)
     rules = save_rules(
         session, supplier_id, _validated(body.document), author=user.name, note=body.note
     )
