@@ -105,3 +105,23 @@ def admin_token(settings: Settings) -> str | None:
         user = accounts.create_user(session, "test admin", accounts.Role.admin)
         _token, plaintext = accounts.create_token(session, user, "tests")
     return plaintext
+
+
+def stored_intake(
+    session: Any, store: Any, content: bytes, *, supplier: Any, name: str, **fields: Any
+) -> Any:
+    """An intake row for ``content``, stored in ``store`` as an upload would be, no job run."""
+    from server.store import Intake
+
+    stored = store.store_chunks([content])
+    intake = Intake(
+        supplier=supplier,
+        original_name=name,
+        file_key=stored.key,
+        sha256=stored.sha256,
+        bytes=stored.bytes,
+        **fields,
+    )
+    session.add(intake)
+    session.flush()
+    return intake

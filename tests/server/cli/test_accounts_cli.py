@@ -15,6 +15,7 @@ from server.security.tokens import digest
 from server.settings import get_settings
 from server.store import FileStore, Intake, Supplier, accounts, file_store, schema, session_scope
 from server.store.models import utcnow
+from tests.support import stored_intake
 
 
 @pytest.fixture
@@ -92,19 +93,10 @@ def test_user_disable_stops_sign_in_and_tokens(cli_settings, monkeypatch, capsys
 
 def _intake(session, store: FileStore, name: str, age_days: int, content: bytes) -> Intake:
     supplier = session.query(Supplier).first() or Supplier(name="Saltmarsh buoy network")
-    stored = store.store_chunks([content])
-    intake = Intake(
-        supplier=supplier,
-        original_name=name,
-        file_key=stored.key,
-        sha256=stored.sha256,
-        bytes=stored.bytes,
-        status="ready",
-        created_at=utcnow() - timedelta(days=age_days),
+    created_at = utcnow() - timedelta(days=age_days)
+    return stored_intake(
+        session, store, content, supplier=supplier, name=name, status="ready", created_at=created_at
     )
-    session.add(intake)
-    session.flush()
-    return intake
 
 
 def test_files_purge_removes_old_files_and_keeps_recent_ones(cli_settings, capsys) -> None:

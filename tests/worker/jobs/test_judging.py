@@ -11,6 +11,7 @@ from server.settings import Settings
 from server.store import Intake, Supplier, dispose_engines, file_store, schema, session_scope
 from server.store.reviews import Decision, Judgement, save_rules
 from tests.conftest import make_settings
+from tests.support import stored_intake
 from worker.jobs import judging as judging_module
 from worker.jobs import profile_intake
 
@@ -28,21 +29,12 @@ def settings(database_url: str, tmp_path: Path) -> Settings:
 
 
 def _intake(settings: Settings, supplier_id: int | None, content: bytes, name: str) -> int:
-    stored = file_store(settings).store_chunks([content])
     with session_scope(settings) as session:
         supplier = (
             session.get(Supplier, supplier_id) if supplier_id else Supplier(name="Brackwater")
         )
-        intake = Intake(
-            supplier=supplier,
-            original_name=name,
-            file_key=stored.key,
-            sha256=stored.sha256,
-            bytes=stored.bytes,
-        )
-        session.add(intake)
-        session.flush()
-        return intake.id
+        store = file_store(settings)
+        return stored_intake(session, store, content, supplier=supplier, name=name).id
 
 
 def _judgement(settings: Settings, intake_id: int) -> Judgement | None:

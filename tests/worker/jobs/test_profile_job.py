@@ -15,6 +15,7 @@ from server.store import (
     file_store,
     session_scope,
 )
+from tests.support import stored_intake
 from worker.jobs import profile_intake
 
 # Invented delivery with one planted missing value.
@@ -22,19 +23,10 @@ DELIVERY = b"vessel,weight_kg,species\nBB-001,120.5,cod\nBB-002,,haddock\nBB-003
 
 
 def _new_intake(settings: Settings, content: bytes = DELIVERY) -> int:
-    stored = file_store(settings).store_chunks([content])
     with session_scope(settings) as session:
         supplier = Supplier(name="Brannock Bay fishing cooperative")
-        intake = Intake(
-            supplier=supplier,
-            original_name="landings.csv",
-            file_key=stored.key,
-            sha256=stored.sha256,
-            bytes=stored.bytes,
-        )
-        session.add(intake)
-        session.flush()
-        return intake.id
+        store = file_store(settings)
+        return stored_intake(session, store, content, supplier=supplier, name="landings.csv").id
 
 
 def _counts(settings: Settings, intake_id: int) -> tuple[int, int]:

@@ -10,25 +10,22 @@ from sqlalchemy import update
 from server.settings import Settings
 from server.store import Intake, IntakeStatus, Supplier, file_store, session_scope
 from server.store.models import utcnow
+from tests.support import stored_intake
 from worker.jobs.sweeper import sweep
 
 
 def _intake(settings: Settings, *, status: str, age_seconds: float, attempts: int = 0) -> int:
-    stored = file_store(settings).store_chunks([b"a,b\n1,2\n3,4\n"])
     with session_scope(settings) as session:
         supplier = session.query(Supplier).first() or Supplier(name="Gullwick tide-gauge station")
-        intake = Intake(
+        intake_id = stored_intake(
+            session,
+            file_store(settings),
+            b"a,b\n1,2\n3,4\n",
             supplier=supplier,
-            original_name="levels.csv",
-            file_key=stored.key,
-            sha256=stored.sha256,
-            bytes=stored.bytes,
+            name="levels.csv",
             status=status,
             attempts=attempts,
-        )
-        session.add(intake)
-        session.flush()
-        intake_id = intake.id
+        ).id
     with session_scope(settings) as session:  # set the age after the row's own onupdate
         session.execute(
             update(Intake)
