@@ -48,9 +48,27 @@ def error_response(
     )
 
 
-def _field_name(location: tuple[Any, ...] | list[Any]) -> str:
-    parts = [str(p) for p in location if p not in ("body", "query", "path", "header", "form")]
-    return ".".join(parts) or "request"
+LOCATIONS = ("body", "query", "path", "header", "cookie", "form")
+
+
+def _problem(error: dict[str, Any]) -> dict[str, str]:
+    """One validation error as ``{"field", "message"}``, the field as the client named it.
+
+    Only the first element of pydantic's location says where (body, query…);
+    the rest is the field's path, which may itself be called "body".
+    """
+    location = list(error.get("loc", ()))
+    if location and location[0] in LOCATIONS:
+        where, location = location[0], location[1:]
+    else:
+        where = "request"
+    if error.get("type") == "json_invalid":  # the location holds the offending position
+        at = f" at character {location[0]}" if location else ""
+        return {"field": where, "message": f"not valid JSON{at}"}
+    return {
+        "field": ".".join(str(p) for p in location) or where,
+        "message": error.get("msg", "invalid"),
+    }
 
 
 def install_error_handlers(app: FastAPI) -> None:
@@ -69,10 +87,7 @@ def install_error_handlers(app: FastAPI) -> None:
 
     @app.exception_handler(RequestValidationError)
     async def _invalid(_request: Request, exc: RequestValidationError) -> JSONResponse:
-        problems = [
-            {"field": _field_name(e.get("loc", ())), "message": e.get("msg", "invalid")}
-            for e in exc.errors()
-        ]
+        problems = [_problem(e) for e in exc.errors()]
         summary = "; ".join(f"{p['field']}: {p['message']}" for p in problems)
         return error_response(
             422, f"invalid request ({summary})", "invalid_request", errors=problems

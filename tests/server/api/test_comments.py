@@ -94,7 +94,9 @@ def test_bad_targets_are_422(api) -> None:
     assert answer.status_code == 422 and answer.json()["code"] == "unknown_column"
     answer = client.post(url, json={"flag_code": "made.up", "body": "?"})
     assert answer.status_code == 422 and answer.json()["code"] == "unknown_flag_code"
-    assert client.post(url, json={"body": ""}).status_code == 422
+    empty = client.post(url, json={"body": ""})
+    assert empty.status_code == 422
+    assert [e["field"] for e in empty.json()["errors"]] == ["body"]  # the field, by its name
     whole = client.post(url, json={"body": "Looks like last week's file."})
     assert whole.status_code == 201 and whole.json()["column"] is None
     assert client.post("/api/v1/threads/999999/resolve").status_code == 404

@@ -47,6 +47,9 @@ def test_bad_bodies_are_422_with_the_field_named(client) -> None:
         "/api/v1/suppliers", content=b"{not json", headers={"content-type": "application/json"}
     )
     assert broken.status_code == 422
+    assert broken.json()["errors"] == [
+        {"field": "body", "message": "not valid JSON at character 1"}
+    ]
 
 
 def test_unknown_supplier_is_404(client) -> None:
