@@ -10,6 +10,7 @@ from dataclasses import dataclass
 from datetime import timedelta
 
 from sqlalchemy.orm import Session
+from starlette.responses import Response
 
 from server.security.passwords import (
     WeakPassword,
@@ -18,6 +19,7 @@ from server.security.passwords import (
     hash_password,
     verify_password,
 )
+from server.security.sessions import clear_session_cookie
 from server.security.throttle import retry_after
 from server.settings import SecuritySettings
 from server.store import accounts
@@ -121,3 +123,25 @@ def change_own_password(
     accounts.close_user_sessions(session, user)
     accounts.audit(session, "password-change", actor=user, address=address)
     return None
+
+
+def sign_out(
+    session: Session,
+    secret: str | None,
+    user_id: int,
+    *,
+    address: str,
+    response: Response,
+    security: SecuritySettings,
+) -> Response:
+    """End the session ``secret`` names (audited) and clear its cookie on ``response``.
+
+    The API answers 204 and the pages redirect; both end the session the same way.
+    """
+    if secret:
+        accounts.close_session(session, secret)
+        actor = session.get(accounts.User, user_id)
+        accounts.audit(session, "sign-out", actor=actor, address=address)
+        session.commit()
+    clear_session_cookie(response, security)
+    return response

@@ -14,8 +14,8 @@ from server.api.deps import CurrentUser, SessionDep, SettingsDep, SignedInUser
 from server.api.errors import ApiError
 from server.security.access import SESSION_COOKIE
 from server.security.csrf import csrf_token
-from server.security.sessions import clear_session_cookie, session_lifetime, set_session_cookie
-from server.security.signin import change_own_password, sign_in
+from server.security.sessions import session_lifetime, set_session_cookie
+from server.security.signin import change_own_password, sign_in, sign_out
 from server.store import accounts
 
 router = APIRouter(prefix="/auth", tags=["accounts"])
@@ -98,15 +98,14 @@ def api_sign_out(
     request: Request, session: SessionDep, settings: SettingsDep, user: SignedInUser
 ) -> Response:
     """End the current session."""
-    secret = request.cookies.get(SESSION_COOKIE)
-    if secret:
-        accounts.close_session(session, secret)
-        actor = session.get(accounts.User, user.id)
-        accounts.audit(session, "sign-out", actor=actor, address=client_address(request))
-        session.commit()
-    response = Response(status_code=204)
-    clear_session_cookie(response, settings.security)
-    return response
+    return sign_out(
+        session,
+        request.cookies.get(SESSION_COOKIE),
+        user.id,
+        address=client_address(request),
+        response=Response(status_code=204),
+        security=settings.security,
+    )
 
 
 class PasswordChange(BaseModel):
