@@ -11,6 +11,7 @@ from __future__ import annotations
 import copy
 import hashlib
 import os
+import queue
 import threading
 import time
 from collections.abc import Callable, Iterator
@@ -331,35 +332,48 @@ def _judge(profile: dict[str, Any], options: ProfileOptions) -> dict[str, Any]:
     return {"flags": judged["flags"], "score": judged["score"], "verdict": judged.get("verdict")}
 
 
-def _batches(source: Any) -> Iterator[pa.RecordBatch]:
-    """The source's batches, the next one read in a thread while this one is profiled.
+def _batches(source: Any, ahead: int = 3) -> Iterator[pa.RecordBatch]:
+    """The source's batches, read in a thread up to ``ahead`` batches before the one
+    being profiled, so a slow stretch of reading or of profiling does not stall the other.
 
     Joining the reader's batches into larger ones was measured slower here
     (tests/perf manifests, 2 M rows), so they are profiled as they come.
     """
-    queue: list[Any] = []
-    iterator = iter(source.batches())
+    handoff: queue.Queue[Any] = queue.Queue(maxsize=ahead)
+    stop = threading.Event()
+
+    def offer(item: Any) -> bool:
+        """Hand one item over; False once the consumer has stopped."""
+        while not stop.is_set():
+            try:
+                handoff.put(item, timeout=0.1)
+                return True
+            except queue.Full:
+                continue
+        return False
 
     def fetch() -> None:
         try:
-            queue.append(next(iterator))
-        except StopIteration:
-            queue.append(StopIteration)
+            for batch in source.batches():
+                if not offer(batch):
+                    return
+            offer(StopIteration)
         except BaseException as exc:  # handed to the consumer below
-            queue.append(exc)
+            offer(exc)
 
     worker = threading.Thread(target=fetch, daemon=True)
     worker.start()
-    while True:
+    try:
+        while True:
+            item = handoff.get()
+            if item is StopIteration:
+                return
+            if isinstance(item, BaseException):
+                raise item
+            yield item
+    finally:
+        stop.set()
         worker.join()
-        item = queue.pop()
-        if item is StopIteration:
-            return
-        if isinstance(item, BaseException):
-            raise item
-        worker = threading.Thread(target=fetch, daemon=True)
-        worker.start()
-        yield item
 
 
 class _Digest:
