@@ -43,8 +43,12 @@ def make_celery(settings: Settings) -> Celery:
         worker_concurrency=settings.worker_concurrency,
     )
 
+    # shared=False: the task belongs to this app only. A shared task would be added to
+    # every Celery app the process makes, so a second app (other settings) would get the
+    # first app's task, bound to the first app's settings, under the same name.
     @app.task(
         name=TASK_NAME,
+        shared=False,
         autoretry_for=TRANSIENT_ERRORS,
         retry_backoff=True,
         retry_backoff_max=settings.job_retry_backoff_max_seconds,

@@ -25,3 +25,15 @@ def test_task_retries_transient_errors_with_backoff(app_settings: Settings) -> N
     assert task.retry_backoff is True
     assert task.retry_backoff_max == app_settings.job_retry_backoff_max_seconds
     assert task.max_retries == app_settings.job_max_retries
+
+
+def test_each_app_runs_the_task_with_its_own_settings(app_settings: Settings, monkeypatch) -> None:
+    """Two apps in one process (other settings) must not share one task callable."""
+    seen: list[tuple[int, Settings]] = []
+    monkeypatch.setattr("worker.jobs.celery_app.profile_intake", lambda i, s: seen.append((i, s)))
+    other = app_settings.model_copy(update={"job_max_retries": app_settings.job_max_retries + 1})
+    first, second = make_celery(app_settings), make_celery(other)
+    first.tasks[TASK_NAME].run(1)
+    second.tasks[TASK_NAME].run(2)
+    assert seen == [(1, app_settings), (2, other)]
+    assert second.tasks[TASK_NAME].max_retries == other.job_max_retries
