@@ -19,7 +19,7 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.settings import Settings
-from server.store import Intake, Profile
+from server.store import Intake, IntakeStatus, Profile
 from server.store.reviews import (
     Judgement,
     SupplierRules,
@@ -138,24 +138,25 @@ REJUDGE_MAX = 20
 def _rejudge_undecided(
     session: Session, candidates: list[Intake], settings: Settings, *, keep_chosen: bool
 ) -> list[int]:
-    """Judge again the ``candidates`` that have a judgement and no decision yet.
+    """Judge again the profiled ``candidates`` that have no decision yet.
 
     A decided intake keeps the judgement its decision was made on. With
     ``keep_chosen``, intakes whose baseline a person chose are left alone too.
-    At most REJUDGE_MAX are judged, in the order given.
+    Intakes without a profile are skipped (their job judges them). At most
+    REJUDGE_MAX are judged, in the order given.
     """
     decisions = latest_decisions(session, [i.id for i in candidates])
     judged: list[int] = []
     for intake in candidates:
         if len(judged) >= REJUDGE_MAX:
             break
-        if intake.id in decisions:
+        if intake.id in decisions or intake.status != IntakeStatus.ready:
             continue
         judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
-        if judgement is None or (keep_chosen and judgement.baseline_chosen):
+        if keep_chosen and judgement is not None and judgement.baseline_chosen:
             continue
-        judge(session, intake, settings)
-        judged.append(intake.id)
+        if judge(session, intake, settings) is not None:
+            judged.append(intake.id)
     return judged
 
 

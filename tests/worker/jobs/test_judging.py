@@ -75,3 +75,28 @@ def test_a_failing_judgement_keeps_the_profile(
     with session_scope(settings) as session:
         intake = session.get(Intake, intake_id)
         assert intake.profile is not None and intake.profile.rows == 4
+
+
+def test_new_rules_judge_the_undecided_profiled_intakes(
+    settings: Settings, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    decided = _intake(settings, None, FIRST, "week-1.csv")
+    profile_intake(decided, settings)
+    with session_scope(settings) as session:
+        supplier_id = session.get(Intake, decided).supplier_id
+        session.add(Decision(intake_id=decided, verdict="accepted", decided_by="desk"))
+    # The second delivery's judging fails in its job: it is profiled but unjudged.
+    real_assess = judging_module.assess
+    monkeypatch.setattr(judging_module, "assess", lambda *a, **k: 1 / 0)
+    unjudged = _intake(settings, supplier_id, SECOND, "week-2.csv")
+    profile_intake(unjudged, settings)
+    assert _judgement(settings, unjudged) is None
+    monkeypatch.setattr(judging_module, "assess", real_assess)
+    waiting = _intake(settings, supplier_id, FIRST + b"C9,18.0,A\n", "week-3.csv")  # not profiled
+    with session_scope(settings) as session:
+        save_rules(session, supplier_id, {"columns": {"weight_kg": {"max": 40}}}, author="desk")
+        judged = judging_module.rejudge_after_rules(session, supplier_id, settings)
+    assert judged == [unjudged]  # not the decided one, not the one still queued
+    assert _judgement(settings, unjudged).rules_version == 1
+    assert _judgement(settings, decided).rules_version is None
+    assert _judgement(settings, waiting) is None
