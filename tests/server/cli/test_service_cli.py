@@ -84,5 +84,10 @@ def test_serve_answers_health_checks(tmp_path: Path, migrated_sqlite: Path) -> N
         assert '"status":"ok"' in body
     finally:
         server.terminate()
-        output, _ = server.communicate(timeout=30)
+        try:
+            output, _ = server.communicate(timeout=30)
+        except subprocess.TimeoutExpired:  # it would not stop: kill it, then fail
+            server.kill()
+            output, _ = server.communicate(timeout=30)
+            raise AssertionError(f"tidewaiter serve did not stop on SIGTERM:\n{output}") from None
     assert f"http://127.0.0.1:{port}/" in output
