@@ -29,6 +29,7 @@ if TYPE_CHECKING:
     from worker.profiling.prepared import PreparedBatch
 
 HASH_SEED = 0x7D3A
+_SLICE_BITS = 4  # the exact count sorts the hashes in 2**4 slices, one at a time
 
 
 def row_hashes(raw: pa.RecordBatch) -> np.ndarray:
@@ -134,23 +135,31 @@ class DuplicateState:
     def _exact(self) -> dict[str, Any]:
         """Exact count and first examples from the kept hashes.
 
-        One sorted copy of the hashes gives the count (equal neighbours); the
-        examples are then found by scanning the batches in row order against the
-        few repeated hashes, so no per-row table of (hash, row) is ever built and
-        the extra memory is one array of the hashes (8 bytes a row).
+        The hashes are split by their top bits into ``_SLICES`` slices; each slice is
+        gathered, sorted and its equal neighbours counted in turn, so the extra
+        memory is a sixteenth of the hashes instead of a sorted copy of all of them
+        (which made the peak grow with the rows). The examples are then found by
+        scanning the batches in row order against the few repeated hashes; no
+        per-row table of (hash, row) is ever built.
         """
         parts = sorted(self._parts, key=lambda part: part[0])
         if not parts:
             return {"duplicate_rows": 0, "examples": []}
-        ordered = np.concatenate([h for _, h in parts])
-        ordered.sort()
-        equal = ordered[1:] == ordered[:-1]
-        repeated = int(np.count_nonzero(equal))
+        tops = [(h >> np.uint64(64 - _SLICE_BITS)).astype(np.uint8) for _, h in parts]
+        repeated = 0
+        found: list[np.ndarray] = []
+        for value in range(1 << _SLICE_BITS):
+            chunk = np.concatenate([h[t == value] for (_, h), t in zip(parts, tops, strict=True)])
+            chunk.sort()
+            equal = chunk[1:] == chunk[:-1]
+            count = int(np.count_nonzero(equal))
+            if count:
+                repeated += count
+                found.append(np.unique(chunk[1:][equal]))
+        del tops
         examples: list[list[int]] = []
         if repeated and self.example_groups:
-            repeated_hashes = np.unique(ordered[1:][equal])
-            del ordered, equal
-            examples = self._examples(parts, repeated_hashes)
+            examples = self._examples(parts, np.sort(np.concatenate(found)))
         return {"duplicate_rows": repeated, "examples": examples}
 
     def _examples(
