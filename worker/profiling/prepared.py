@@ -161,13 +161,19 @@ def _text_missing(
     raw_lengths, lengths = _lengths(raw), _lengths(trimmed)
     null_np = null_mask(raw)
     blank_np = (lengths == 0) & ~null_np
-    is_token = pc.is_in(trimmed, value_set=pa.array(tokens, type=trimmed.type))
-    token_np = to_numpy_bool(is_token)
+    # A cell longer than every token cannot be one: columns of codes or sentences
+    # skip the hash lookup of every cell.
+    longest = max((len(token.encode()) for token in tokens), default=0)
+    if np.any((lengths <= longest) & (lengths > 0)):
+        is_token = pc.is_in(trimmed, value_set=pa.array(tokens, type=trimmed.type))
+        token_np = to_numpy_bool(is_token)
+    else:
+        token_np = np.zeros(len(trimmed), dtype=bool)
     missing = null_np | blank_np | token_np
     token_counts: dict[str, int] = {}
     token_hits = int(np.count_nonzero(token_np))
     if token_hits:
-        counted = pc.value_counts(pc.filter(trimmed, is_token))
+        counted = pc.value_counts(pc.filter(trimmed, pa.array(token_np)))
         for item in counted.to_pylist():
             token_counts[item["values"]] = int(item["counts"])
     blanks = int(np.count_nonzero(blank_np))

@@ -73,3 +73,15 @@ def test_clean_label_columns_are_counted_once_and_padded_ones_take_the_careful_p
     assert padded.labels["s"].to_pylist() == ["a", None, "b", None]
     assert padded.missing_counts["s"] == MissingCounts(null=0, blank=1, tokens={"NA": 1})
     assert padded.padded["s"] == 1
+
+
+def test_long_cells_skip_the_token_check_and_short_ones_keep_it():
+    # Truth by construction: codes longer than every token are never missing tokens;
+    # a column with one short cell still has it checked.
+    plan = _plan(numeric=frozenset(), labels=frozenset(), missing_tokens=("N/A", "null"))
+    codes = pa.record_batch({"code": pa.array(["CR-0000001", "CR-0000002", " CR-0000003 "])})
+    assert not prepare_batch(codes, 0, plan).missing["code"].any()
+    mixed = pa.record_batch({"code": pa.array(["CR-0000001", " null ", "N/A", "nulls"])})
+    prepared = prepare_batch(mixed, 0, plan)
+    assert prepared.missing["code"].tolist() == [False, True, True, False]
+    assert prepared.missing_counts["code"].tokens == {"null": 1, "N/A": 1}
