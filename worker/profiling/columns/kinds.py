@@ -100,8 +100,11 @@ class KindCounts:
         if numbers is None:
             return
         fits = ~np.isnan(numbers)
-        self.numbers += int(np.count_nonzero(fits))
-        if text is not None and len(self.not_numbers) < _EXAMPLES:
+        fitting = int(np.count_nonzero(fits))
+        self.numbers += fitting
+        # Examples of values that are not numbers, looked for only when there are some.
+        odd_count = (len(text) - text.null_count - fitting) if text is not None else 0
+        if text is not None and odd_count > 0 and len(self.not_numbers) < _EXAMPLES:
             odd = pc.filter(
                 text, pa.array(~fits & pc.is_valid(text).to_numpy(zero_copy_only=False))
             )
