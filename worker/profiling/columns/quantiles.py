@@ -9,9 +9,9 @@ rank read from a sample of m values is within ε = √(ln(2/δ) / 2m) of the tru
 rank, for all points at once. The bound is for independent draws; a sample
 without replacement only concentrates the ranks further (Hoeffding 1963, §6),
 so it is conservative here. With the default 262,144 values ε ≈ 0.0032,
-about what a KLL sketch with k = 800 states, at a fifth of its cost per value
-(one random draw and one comparison against a C++ sketch update; measured on
-the benchmark manifests, tests/perf).
+about what a KLL sketch with k = 800 states, at under a quarter of its cost:
+7.7 ns a value over 11 million normal values in batches of 50,000, against
+34.5 ns a value for the DataSketches KLL update (measured here, process time).
 
 References: R. J. Hyndman and Y. Fan, "Sample quantiles in statistical
 packages", The American Statistician 50 (1996); A. Dvoretzky, J. Kiefer and
