@@ -20,6 +20,7 @@ from server.pages.api_docs import mount_swagger_files
 from server.pages.api_docs import router as api_docs_router
 from server.pages.downloads import router as downloads_router
 from server.pages.intakes import router as intakes_router
+from server.pages.rules import router as rules_router
 from server.pages.suppliers import router as suppliers_router
 
 WEB_DIR = Path(__file__).resolve().parents[2] / "web"
@@ -57,4 +58,5 @@ def install_pages(app: FastAPI) -> None:
     mount_swagger_files(app)
     app.include_router(downloads_router, dependencies=[Depends(current_user)])
     app.include_router(suppliers_router, dependencies=[Depends(current_user)])
+    app.include_router(rules_router, dependencies=[Depends(current_user)])
     app.mount("/static", StaticFiles(directory=WEB_DIR / "static", check_dir=False), name="static")
