@@ -53,7 +53,9 @@ def pytest_collection_modifyitems(items: list[pytest.Item]) -> None:
             item.add_marker(pytest.mark.browser)
 
 
-@pytest.fixture(scope="session")
+# Package scope: playwright's sync API keeps an event loop running in the main
+# thread while it is open, which would break asyncio.run() in the tests after these.
+@pytest.fixture(scope="package")
 def browser() -> Iterator[Browser]:
     if not CHROMIUM.exists():
         pytest.fail("chromium is missing: `apt-get install -y chromium` (.ci/run does this)")
@@ -197,7 +199,7 @@ def start_server(data_dir: Path) -> Iterator[tuple[str, Settings]]:
                 process.kill()
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="package")
 def live_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
     """The base URL of a running ``tidewaiter serve`` loaded with the demo scenario."""
     with start_server(tmp_path_factory.mktemp("live-server")) as (base, _settings):
