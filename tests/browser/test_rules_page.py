@@ -1,0 +1,69 @@
+"""The rules page in a browser: draft from an intake, see a mistake, fix it, save; read-only."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+from playwright.sync_api import Page, expect
+
+from tests.browser.conftest import sign_in
+
+LAB = "Saltmere water-quality lab"
+
+
+def open_rules(page: Page, base: str) -> None:
+    page.goto(f"{base}/suppliers")
+    page.get_by_role("link", name=LAB).click()
+    page.get_by_role("link", name="rules", exact=True).click()
+    expect(page.get_by_role("heading", name=f"Rules of {LAB}")).to_be_visible()
+
+
+def test_admin_drafts_checks_fixes_and_saves(
+    page: Page, live_server: str, screenshot_dir: Path
+) -> None:
+    sign_in(page, live_server, "demo-admin")
+    open_rules(page, live_server)
+    editor = page.get_by_label("Rules (YAML)")
+    # The lab's accepted deliveries come first in the list to draft from.
+    expect(page.locator("#draft-intake option").first).to_contain_text("accepted")
+    page.get_by_role("button", name="Draft").click()
+    expect(page.locator("#rules-message")).to_contain_text("Drafted from intake")
+    drafted = editor.input_value()
+    assert "columns:" in drafted and "kind: numeric" in drafted
+    page.get_by_role("button", name="Save as new version").click()
+    page.wait_for_url(re.compile(r"saved=\d+"))
+    first = int(re.search(r"saved=(\d+)", page.url).group(1))
+    expect(page.get_by_role("heading", name=f"Version {first}")).to_be_visible()
+
+    editor.fill(drafted.replace("kind: numeric", "kind: sometimes", 1))
+    page.get_by_role("button", name="Check").click()
+    problems = page.locator("#problems li")
+    expect(problems.first).to_be_visible()
+    expect(problems.first).to_contain_text("kind")
+    expect(page.locator("#rules-message")).to_have_text("The rules have mistakes.")
+    page.get_by_role("button", name="Save as new version").click()  # refused: still mistakes
+    expect(page.locator("#rules-message")).to_have_text("The rules have mistakes.")
+    assert f"saved={first}" in page.url
+
+    editor.fill(drafted)
+    page.get_by_label("What changed (note)").fill("as drafted, checked again")
+    page.get_by_role("button", name="Check").click()
+    expect(page.locator("#problems-empty")).to_contain_text("No mistakes")
+    expect(problems).to_have_count(0)
+    page.get_by_role("button", name="Save as new version").click()
+    page.wait_for_url(re.compile(rf"saved={first + 1}\b"))
+    expect(page.get_by_role("heading", name=f"Version {first + 1}")).to_be_visible()
+    expect(page.locator("#rules-saved")).to_contain_text(f"Version {first + 1} saved.")
+    expect(page.locator(".rules-versions li")).to_have_count(first + 1)
+    expect(page.locator(".rules-versions li").first).to_contain_text("as drafted, checked again")
+    page.set_viewport_size({"width": 1280, "height": 900})
+    page.screenshot(path=str(screenshot_dir / "rules-1280.png"), full_page=True)
+
+
+def test_viewer_reads_the_rules_without_a_save_control(page: Page, live_server: str) -> None:
+    sign_in(page, live_server, "demo-viewer")
+    open_rules(page, live_server)
+    expect(page.get_by_label(re.compile("Rules \\(YAML\\)"))).to_have_attribute("readonly", "")
+    expect(page.get_by_role("button", name="Save as new version")).to_have_count(0)
+    expect(page.get_by_role("button", name="Draft")).to_have_count(0)
