@@ -17,8 +17,8 @@ from server.api.routes.auth import client_address
 from server.pages.templating import templates
 from server.security.access import SESSION_COOKIE
 from server.security.csrf import same_origin
-from server.security.sessions import clear_session_cookie, session_lifetime, set_session_cookie
-from server.security.signin import change_own_password, sign_in
+from server.security.sessions import session_lifetime, set_session_cookie
+from server.security.signin import change_own_password, sign_in, sign_out
 from server.store import accounts
 
 router = APIRouter(include_in_schema=False)
@@ -89,15 +89,14 @@ def sign_out_submit(
     request: Request, session: SessionDep, settings: SettingsDep, user: SignedInUser
 ) -> Response:
     """End the session and go back to the sign-in page."""
-    secret = request.cookies.get(SESSION_COOKIE)
-    if secret:
-        accounts.close_session(session, secret)
-        actor = session.get(accounts.User, user.id)
-        accounts.audit(session, "sign-out", actor=actor, address=client_address(request))
-        session.commit()
-    response = RedirectResponse("/sign-in", status_code=303)
-    clear_session_cookie(response, settings.security)
-    return response
+    return sign_out(
+        session,
+        request.cookies.get(SESSION_COOKIE),
+        user.id,
+        address=client_address(request),
+        response=RedirectResponse("/sign-in", status_code=303),
+        security=settings.security,
+    )
 
 
 @router.get("/account", response_class=HTMLResponse)
