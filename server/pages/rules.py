@@ -44,8 +44,12 @@ def rules_page(
     user: CurrentUser,
     saved: int | None = Query(None),
     rejudged: str | None = Query(None, max_length=2000),
+    version: int | None = Query(None, description="An earlier version to show instead."),
 ) -> HTMLResponse:
-    """The current rules as YAML, the earlier versions, and (admins) the editor's save."""
+    """The current rules as YAML, the earlier versions, and (admins) the editor's save.
+
+    With ``version`` the editor holds that earlier version; saving it makes it current again.
+    """
     supplier = session.get(Supplier, supplier_id)
     if supplier is None:
         raise ApiError(404, f"there is no supplier {supplier_id}", code="not_found")
@@ -57,13 +61,15 @@ def rules_page(
         )
     )
     current = versions[0] if versions else None
-    text = yaml.safe_dump(current.document, sort_keys=False, allow_unicode=True) if current else ""
+    shown = next((v for v in versions if v.version == version), current)
+    text = yaml.safe_dump(shown.document, sort_keys=False, allow_unicode=True) if shown else ""
     return templates.TemplateResponse(
         request,
         "rules.html",
         {
             "supplier": supplier,
             "current": current,
+            "shown": shown,
             "versions": versions,
             "rules_yaml": text,
             "intakes": draft_order(history.timeline(supplier_id, session, user)),

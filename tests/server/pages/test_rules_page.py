@@ -47,6 +47,10 @@ def test_admin_sees_the_editor_and_versions_viewer_reads_only(client, app_settin
     area = page.text[page.text.index(">", start) + 1 : page.text.index("</textarea>", start)]
     assert yaml.safe_load(html.unescape(area)) == document
 
+    earlier = client.get(url, params={"version": 1})
+    assert "an earlier version" in earlier.text and "first" in earlier.text
+    assert f'href="{url}?version=2"' in earlier.text
+
     viewer = token_for(app_settings, "shed viewer", Role.viewer)
     read_only = client.get(url, headers={"Authorization": f"Bearer {viewer}"})
     assert read_only.status_code == 200
