@@ -42,6 +42,7 @@ def test_admin_drafts_checks_fixes_and_saves(
     expect(problems.first).to_be_visible()
     expect(problems.first).to_contain_text("kind")
     expect(page.locator("#rules-message")).to_have_text("The rules have mistakes.")
+    page.screenshot(path=str(screenshot_dir / "rules-mistake-1280.png"), full_page=True)
     page.get_by_role("button", name="Save as new version").click()  # refused: still mistakes
     expect(page.locator("#rules-message")).to_have_text("The rules have mistakes.")
     assert f"saved={first}" in page.url
@@ -59,6 +60,13 @@ def test_admin_drafts_checks_fixes_and_saves(
     expect(page.locator(".rules-versions li").first).to_contain_text("as drafted, checked again")
     page.set_viewport_size({"width": 1280, "height": 900})
     page.screenshot(path=str(screenshot_dir / "rules-1280.png"), full_page=True)
+
+    saved_text = editor.input_value()  # as saved: defaults such as required: true dropped
+    page.get_by_role("link", name=f"version {first}", exact=True).click()
+    expect(page.get_by_role("heading", name=re.compile(f"^Version {first} "))).to_contain_text(
+        "an earlier version"
+    )
+    assert editor.input_value() == saved_text  # both versions hold the same draft
 
 
 def test_viewer_reads_the_rules_without_a_save_control(page: Page, live_server: str) -> None:
