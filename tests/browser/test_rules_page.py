@@ -37,6 +37,11 @@ def test_admin_drafts_checks_fixes_and_saves(
     expect(page.get_by_role("heading", name=f"Version {first}")).to_be_visible()
 
     editor.fill(drafted.replace("kind: numeric", "kind: sometimes", 1))
+    asked = []
+    page.once("dialog", lambda dialog: (asked.append(dialog.message), dialog.dismiss()))
+    page.get_by_role("button", name="Draft").click()  # edits are not replaced unasked
+    expect(editor).to_have_value(re.compile("kind: sometimes"))
+    assert asked and "Replace your edits" in asked[0]
     page.get_by_role("button", name="Check").click()
     problems = page.locator("#problems li")
     expect(problems.first).to_be_visible()

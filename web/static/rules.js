@@ -13,6 +13,12 @@
   var message = document.getElementById("rules-message");
   var problems = document.getElementById("problems");
   var empty = document.getElementById("problems-empty");
+  var edited = false; // typed into since the page loaded or the last draft: not to be lost
+
+  text.addEventListener("input", function () { edited = true; });
+  window.addEventListener("beforeunload", function (event) {
+    if (edited && !text.readOnly) event.preventDefault();
+  });
 
   function say(words, isError) {
     message.textContent = words;
@@ -63,10 +69,14 @@
   if (draftButton) {
     draftButton.addEventListener("click", function () {
       var intake = document.getElementById("draft-intake").value;
+      if (edited && !window.confirm("Replace your edits with a draft from intake #" + intake + "?")) {
+        return;
+      }
       say("Drafting from intake #" + intake + "…", false);
       call("GET", "/api/v1/intakes/" + encodeURIComponent(intake) + "/rules-draft")
         .then(function (draft) {
           text.value = draft.yaml;
+          edited = false;
           showProblems([]);
           say("Drafted from intake #" + draft.intake_id + ". Edit, check, then save.", false);
         })
@@ -91,6 +101,7 @@
         })
         .then(function (saved) {
           if (!saved) return;
+          edited = false;
           var query = "?saved=" + saved.version + "&rejudged=" + saved.rejudged.join(",");
           window.location.assign("/suppliers/" + supplier + "/rules" + query);
         })
