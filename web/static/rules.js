@@ -58,7 +58,9 @@
     say("Checking…", false);
     return call("POST", "/api/v1/rules/validate", { document: text.value }).then(function (answer) {
       showProblems(answer.problems);
-      say(answer.valid ? "The rules are valid." : "The rules have mistakes.", !answer.valid);
+      var count = answer.problems.length;
+      say(answer.valid ? "The rules are valid." : "The rules have " + count + " mistake" +
+        (count > 1 ? "s" : "") + ", each listed under Mistakes.", !answer.valid);
       return answer.valid;
     });
   }
