@@ -3,10 +3,12 @@
 from __future__ import annotations
 
 import html
+from datetime import UTC, datetime
 
 import yaml
 
-from server.pages.rules import rejudged_ids
+from server.api.routes import history
+from server.pages.rules import draft_order, rejudged_ids
 from server.store.accounts import Role
 from tests.server.api.reviews_support import crates_csv, token_for
 from tests.support import make_supplier, upload, wait_for_intake
@@ -61,3 +63,29 @@ def test_admin_sees_the_editor_and_versions_viewer_reads_only(client, app_settin
 
 def test_unknown_supplier_is_not_found(client) -> None:
     assert client.get("/suppliers/999/rules").status_code == 404
+
+
+def _entry(intake: int, day: int, status: str = "ready", decision: str | None = None):
+    return history.TimelineEntry(
+        intake_id=intake,
+        name=f"d{intake}.csv",
+        delivered_at=datetime(2031, 3, day, tzinfo=UTC),
+        status=status,
+        rows=10,
+        score=90,
+        flags={},
+        suggested_verdict=None,
+        decision=decision,
+        rules_version=None,
+    )
+
+
+def test_drafts_offer_accepted_intakes_first_then_newest_and_only_profiled_ones() -> None:
+    entries = [
+        _entry(1, 1, decision="accepted"),
+        _entry(2, 2, decision="rejected"),
+        _entry(3, 3),
+        _entry(4, 4, status="failed"),
+        _entry(5, 5, decision="accepted"),
+    ]
+    assert [e.intake_id for e in draft_order(entries)] == [5, 1, 3, 2]
