@@ -4,17 +4,13 @@ names and values hold markup and script: it is shown as text and nothing of it r
 from __future__ import annotations
 
 import re
-import subprocess
-import sys
-import time
 from collections.abc import Iterator
 from pathlib import Path
 
-import httpx
 import pytest
 from playwright.sync_api import Browser, Page, expect
 
-from tests.browser.conftest import DEMO_PASSWORD, REPO, _free_port, server_environment, sign_in
+from tests.browser.conftest import DEMO_PASSWORD, sign_in, start_server
 
 # Invented hostile delivery: every header and cell tries to run script in the page.
 HOSTILE_CSV = (
@@ -28,38 +24,8 @@ HOSTILE_CSV = (
 @pytest.fixture(scope="module")
 def live_server(tmp_path_factory: pytest.TempPathFactory) -> Iterator[str]:
     """A server of this module's own: its hostile deliveries stay out of the shared demo."""
-    data_dir = tmp_path_factory.mktemp("security-server")
-    env = server_environment(data_dir)
-    command = [sys.executable, "-m", "server.cli"]
-    for step in (["db", "upgrade"], ["demo", "load"]):
-        subprocess.run([*command, *step], env=env, cwd=REPO, check=True, capture_output=True)
-    port = _free_port()
-    with (data_dir / "server.log").open("w") as log:
-        process = subprocess.Popen(
-            [*command, "serve", "--port", str(port), "--log-level", "warning"],
-            env=env,
-            cwd=REPO,
-            stdout=log,
-            stderr=subprocess.STDOUT,
-        )
-        base = f"http://127.0.0.1:{port}"
-        deadline = time.monotonic() + 30
-        while True:
-            try:
-                if httpx.get(f"{base}/healthz", timeout=1).status_code < 500:
-                    break
-            except httpx.HTTPError:
-                pass
-            if process.poll() is not None or time.monotonic() > deadline:
-                process.kill()
-                pytest.fail("the server did not start:\n" + (data_dir / "server.log").read_text())
-            time.sleep(0.2)
+    with start_server(tmp_path_factory.mktemp("security-server")) as (base, _settings):
         yield base
-        process.terminate()
-        try:
-            process.wait(timeout=10)
-        except subprocess.TimeoutExpired:
-            process.kill()
 
 
 def test_an_anonymous_visitor_is_sent_to_sign_in(page: Page, live_server: str) -> None:
