@@ -59,6 +59,10 @@ def test_upload_errors_say_what_to_do(page: Page, live_server: str, tmp_path: Pa
 
 
 def test_the_drop_zone_works_from_the_keyboard(page: Page, live_server: str, tmp_path: Path):
+    # Listening from the start turns on the interception of file choosers well before
+    # Enter is pressed: the listener of expect_file_chooser alone asks for it without
+    # waiting, and a quick press could open the chooser before it was in place.
+    page.on("filechooser", lambda chooser: None)
     sign_in(page, live_server)
     page.goto(f"{live_server}/upload")
     for _ in range(25):  # Tab through the page until the drop zone has the focus
