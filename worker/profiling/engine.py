@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import copy
 import hashlib
+import importlib
 import os
 import queue
 import threading
@@ -64,6 +65,7 @@ def profile_file(
     if not path.is_file():
         raise ProfileError(f"there is no file at {path.name}")
     digest = _Digest(path)
+    _load_in_background("scipy.stats")  # needed when summarising; loads while the file is read
     report("reading", 0.0)
     pool = ThreadPoolExecutor(max_workers=options.threads) if options.threads > 1 else None
     with open_table(path, options=options, sheet=sheet) as source:
@@ -374,6 +376,11 @@ def _batches(source: Any, ahead: int = 3) -> Iterator[pa.RecordBatch]:
     finally:
         stop.set()
         worker.join()
+
+
+def _load_in_background(module: str) -> None:
+    """Import ``module`` in a thread, so its second of loading overlaps the reading."""
+    threading.Thread(target=importlib.import_module, args=(module,), daemon=True).start()
 
 
 class _Digest:

@@ -21,7 +21,6 @@ from collections import Counter
 from typing import Any
 
 import numpy as np
-from scipy import stats
 
 from worker.profiling.columns.moments import MomentsState
 from worker.profiling.columns.quantiles import QuantileState
@@ -213,6 +212,8 @@ def _density(values: np.ndarray, sample_size: int, points: int) -> dict[str, Any
         chosen = np.random.default_rng(0).choice(values.size, sample_size, replace=False)
         values = values[chosen]
     try:
+        from scipy import stats  # loaded when needed (slow to import)
+
         kde = stats.gaussian_kde(values, bw_method="scott")
     except np.linalg.LinAlgError:
         return None

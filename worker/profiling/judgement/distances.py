@@ -10,7 +10,6 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 import numpy as np
-from scipy import stats
 
 
 def percentile_cdf(
@@ -121,6 +120,8 @@ def ks_p_value(statistic: float, n_baseline: int, n_target: int) -> float | None
     if n_baseline <= 0 or n_target <= 0:
         return None
     effective = n_baseline * n_target / (n_baseline + n_target)
+    from scipy import stats  # loaded when needed (slow to import)
+
     return float(stats.kstwo.sf(statistic, max(1, round(effective))))
 
 

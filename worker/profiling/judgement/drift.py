@@ -38,7 +38,6 @@ import warnings
 from typing import Any
 
 import numpy as np
-from scipy import stats
 
 from worker.profiling.judgement.distances import (
     decile_psi,
@@ -111,6 +110,8 @@ def _numeric_drift(
             result["ks"] = ks_exact(values_b, values_t)
             with warnings.catch_warnings():  # scipy falls back to asymptotic on ties, saying so
                 warnings.simplefilter("ignore", RuntimeWarning)
+                from scipy import stats  # loaded when needed (slow to import)
+
                 result["ks_p_value"] = float(stats.ks_2samp(values_b, values_t).pvalue)
             result["ks_exact"] = True
         else:
@@ -192,6 +193,8 @@ def _label_rename_bound(base: dict[str, Any], target: dict[str, Any], t: FlagThr
     labels = {str(i["value"]) for c in (base, target) for i in _top_labels(c)}
     if n == 0 or m == 0 or len(labels) < 2:
         return t.rename_max_distance
+    from scipy import stats  # loaded when needed (slow to import)
+
     critical = stats.chi2.ppf(0.95, len(labels) - 1)
     noise = (critical / (8 * np.log(2) * n * m / (n + m))) ** 0.5
     return max(t.rename_max_distance, float(noise))

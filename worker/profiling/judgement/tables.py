@@ -10,7 +10,6 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy import stats
 
 
 @dataclass(frozen=True)
@@ -132,4 +131,6 @@ def chi_square(counts: np.ndarray) -> ChiSquare:
     expected = ContingencyTable([], [], counts).expected
     statistic = float(((counts - expected) ** 2 / expected).sum())
     dof = (counts.shape[0] - 1) * (counts.shape[1] - 1)
+    from scipy import stats  # loaded when needed (slow to import)
+
     return ChiSquare(statistic, dof, float(stats.chi2.sf(statistic, dof)))

@@ -24,7 +24,6 @@ from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
-from scipy.stats import chi2_contingency
 
 
 def adjusted_residuals(table: np.ndarray) -> np.ndarray:
@@ -85,6 +84,8 @@ def crosstab_statistics(
     b_labels = [label for label, keep in zip(b_labels, keep_cols, strict=True) if keep]
     if min(table.shape) < 2:
         return None
+    from scipy.stats import chi2_contingency  # loaded when needed (slow to import)
+
     result = chi2_contingency(table)
     n = int(table.sum())
     row_totals = table.sum(axis=1, keepdims=True)
