@@ -250,6 +250,26 @@ def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
     )
 
 
+def _label_numbers(prepared: PreparedColumn, plan: BatchPlan) -> np.ndarray:
+    """The numbers of a clean label column, parsed once per distinct label.
+
+    The labels need no trimming and hold no missing token (``_clean_labels``
+    checked), so parsing the dictionary and spreading it by the codes gives
+    what parsing every cell would, at the cost of a few hundred casts.
+    """
+    encoded = prepared.encoded
+    assert encoded is not None
+    numbers = np.full(len(encoded), np.nan)
+    if len(encoded.dictionary):
+        per_label = parse_numbers(
+            encoded.dictionary, decimal=plan.decimal, thousands=plan.thousands
+        )
+        codes = encoded.indices.fill_null(0).to_numpy(zero_copy_only=False)
+        numbers = per_label[codes]
+        numbers[prepared.missing] = np.nan
+    return numbers
+
+
 def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColumn:
     """Trim, mark missing cells and parse numbers of one column of a batch."""
     if is_text_type(column.type) and name in plan.numeric and name not in plan.labels:
@@ -262,8 +282,7 @@ def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColu
         prepared = _clean_labels(column, plan)
         if prepared is not None:
             if name in plan.numeric:
-                numbers = parse_numbers(column, decimal=plan.decimal, thousands=plan.thousands)
-                prepared = dataclasses.replace(prepared, numbers=numbers)
+                prepared = dataclasses.replace(prepared, numbers=_label_numbers(prepared, plan))
             return prepared
     if is_text_type(column.type):
         cleaned, mask, detail, padded = _text_missing(column, plan.missing_tokens)
