@@ -2,25 +2,21 @@
 
 While few, the distinct values are kept exactly. Above the bound they are
 hashed to 64 bits (polars' vectorised hash, one fixed seed everywhere so states
-from different workers agree) into a HyperLogLog of 2^precision one-byte
-registers, updated with numpy (``np.maximum.at`` over register indexes), never a loop per value.
-Its relative standard error is 1.04 / sqrt(2^precision) (0.41 % at precision 16).
-
-References: P. Flajolet, É. Fusy, O. Gandouet and F. Meunier, "HyperLogLog: the
-analysis of a near-optimal cardinality estimation algorithm", AofA 2007;
-S. Heule, M. Nunkesser and A. Hall, "HyperLogLog in practice", EDBT 2013
-(64-bit hashes, linear counting for small ranges).
+from different workers agree) into a HyperLogLog (``worker.profiling.hyperloglog``)
+of 2^precision registers, whose relative standard error is 1.04 / sqrt(2^precision)
+(0.41 % at precision 16).
 """
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
 import numpy as np
 import polars as pl
 import pyarrow as pa
 import pyarrow.compute as pc
+
+from worker.profiling.hyperloglog import HyperLogLog
 
 _SEED = 0x7469646577616974
 
@@ -31,13 +27,6 @@ def hash_values(values: pa.Array | np.ndarray) -> np.ndarray:
     if series.dtype == pl.Float64:
         series = series + 0.0  # -0.0 and 0.0 are one number
     return series.hash(seed=_SEED).to_numpy()
-
-
-def _bit_length(words: np.ndarray) -> np.ndarray:
-    smeared = words.copy()
-    for shift in (1, 2, 4, 8, 16, 32):
-        smeared |= smeared >> np.uint64(shift)
-    return np.bitwise_count(smeared).astype(np.uint8)
 
 
 class DistinctState:
@@ -53,19 +42,19 @@ class DistinctState:
         self.precision = precision
         self._parts: list[pa.Array] = []  # distinct values of batches, not yet joined
         self._kept = 0
-        self._registers: np.ndarray | None = None
+        self._sketch: HyperLogLog | None = None
 
     @property
     def exact(self) -> bool:
-        return self._registers is None
+        return self._sketch is None
 
     def update(self, values: pa.Array | np.ndarray) -> None:
         """Add the non-missing values of a batch (text as Arrow, numbers as numpy)."""
         values = _present(values)
         if len(values) == 0:
             return
-        if self._registers is not None:
-            self._add_to_registers(hash_values(values))
+        if self._sketch is not None:
+            self._sketch.update(hash_values(values))
             return
         batch = pc.unique(values)
         if self._parts and batch.type != self._parts[0].type:
@@ -85,19 +74,11 @@ class DistinctState:
             self._to_sketch()
 
     def _to_sketch(self) -> None:
-        self._registers = np.zeros(1 << self.precision, dtype=np.uint8)
+        self._sketch = HyperLogLog(self.precision)
         for part in self._parts:
-            self._add_to_registers(hash_values(part))
+            self._sketch.update(hash_values(part))
         self._parts = []
         self._kept = 0
-
-    def _add_to_registers(self, hashes: np.ndarray) -> None:
-        assert self._registers is not None
-        p = self.precision
-        index = (hashes >> np.uint64(64 - p)).astype(np.intp)
-        rest = hashes & np.uint64((1 << (64 - p)) - 1)
-        rank = np.uint8(64 - p + 1) - _bit_length(rest)
-        np.maximum.at(self._registers, index, rank)
 
     def merge(self, other: DistinctState) -> DistinctState:
         out = DistinctState(self.exact_bound, self.precision)
@@ -107,32 +88,26 @@ class DistinctState:
                 out._parts = [part.cast(parts[0].type) for part in parts]
                 out._join()
             return out
-        out._registers = np.zeros(1 << self.precision, dtype=np.uint8)
+        out._sketch = HyperLogLog(self.precision)
         for part in (self, other):
-            if part._registers is not None:
-                np.maximum(out._registers, part._registers, out=out._registers)
+            if part._sketch is not None:
+                out._sketch.merge(part._sketch)
             for values in part._parts:
-                out._add_to_registers(hash_values(values))
+                out._sketch.update(hash_values(values))
         return out
 
     def estimate(self) -> int:
-        if self._registers is None:
+        if self._sketch is None:
             self._join()
-        if self._registers is None:
+        if self._sketch is None:
             return self._kept
-        m = float(self._registers.size)
-        alpha = 0.7213 / (1.0 + 1.079 / m)
-        raw = alpha * m * m / float(np.sum(np.exp2(-self._registers.astype(np.float64))))
-        zeros = int(np.count_nonzero(self._registers == 0))
-        if raw <= 2.5 * m and zeros:
-            return round(m * math.log(m / zeros))
-        return round(raw)
+        return round(self._sketch.estimate())
 
     def finalize(self) -> dict[str, Any]:
         distinct = self.estimate()
         out: dict[str, Any] = {"distinct": distinct, "distinct_exact": self.exact}
         if not self.exact:
-            out["distinct_relative_error"] = 1.04 / math.sqrt(1 << self.precision)
+            out["distinct_relative_error"] = self._sketch.relative_error
         return out
 
 

@@ -24,6 +24,8 @@ import numpy as np
 import polars as pl
 import pyarrow as pa
 
+from worker.profiling.hyperloglog import HyperLogLog
+
 if TYPE_CHECKING:
     from worker.profiling.options import ProfileOptions
     from worker.profiling.prepared import PreparedBatch
@@ -39,40 +41,6 @@ def row_hashes(raw: pa.RecordBatch) -> np.ndarray:
     frame = pl.from_arrow(raw)
     assert isinstance(frame, pl.DataFrame)
     return frame.hash_rows(seed=HASH_SEED).to_numpy()
-
-
-class HyperLogLog:
-    """HyperLogLog registers over 64-bit hashes, updated and merged with numpy."""
-
-    def __init__(self, precision: int = 14) -> None:
-        self.precision = precision
-        self.registers = np.zeros(1 << precision, dtype=np.uint8)
-
-    @property
-    def relative_error(self) -> float:
-        return 1.04 / np.sqrt(len(self.registers))
-
-    def update(self, hashes: np.ndarray) -> None:
-        p = np.uint64(self.precision)
-        index = (hashes >> (np.uint64(64) - p)).astype(np.int64)
-        rest = (hashes << p) | (np.uint64(1) << (p - np.uint64(1)))  # guard bit caps the rank
-        smeared = rest.copy()
-        for shift in (1, 2, 4, 8, 16, 32):
-            smeared |= smeared >> np.uint64(shift)
-        rank = (65 - np.bitwise_count(smeared)).astype(np.uint8)  # leading zeros + 1
-        np.maximum.at(self.registers, index, rank)
-
-    def merge(self, other: HyperLogLog) -> None:
-        np.maximum(self.registers, other.registers, out=self.registers)
-
-    def estimate(self) -> float:
-        m = float(len(self.registers))
-        alpha = 0.7213 / (1.0 + 1.079 / m)
-        raw = alpha * m * m / float(np.sum(np.ldexp(1.0, -self.registers.astype(np.int64))))
-        zeros = int(np.count_nonzero(self.registers == 0))
-        if raw <= 2.5 * m and zeros:
-            return m * np.log(m / zeros)  # small-range correction (linear counting)
-        return raw
 
 
 class DuplicateState:
