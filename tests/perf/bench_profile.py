@@ -84,21 +84,32 @@ class Run:
     name: str
     rows: int
     seconds: float
+    cpu_seconds: float
     peak_rss_mb: float
     exit_code: int
 
 
 def measure(name: str, rows: int, command: list[str]) -> Run:
-    """Run ``command`` in its own process; wall time and that process's own peak RSS."""
+    """Run ``command`` in its own process; wall time, CPU time (user + system, every
+    thread) and that process's own peak RSS."""
     start = time.perf_counter()
     process = subprocess.Popen(command, stdout=subprocess.DEVNULL)
     _, status, usage = os.wait4(process.pid, 0)
     seconds = time.perf_counter() - start
     process.returncode = os.waitstatus_to_exitcode(status)
+    cpu = usage.ru_utime + usage.ru_stime
     # ru_maxrss is in kilobytes on Linux.
-    run = Run(name, rows, round(seconds, 2), round(usage.ru_maxrss / 1024, 1), process.returncode)
+    run = Run(
+        name,
+        rows,
+        round(seconds, 2),
+        round(cpu, 2),
+        round(usage.ru_maxrss / 1024, 1),
+        process.returncode,
+    )
     print(
         f"  {name:<8} {rows:>11,} rows  {run.seconds:8.2f} s  {run.peak_rss_mb:8.0f} MB"
+        f"  cpu {run.cpu_seconds:7.2f} s ({cpu / max(seconds, 1e-9):.2f} cores)"
         + ("" if run.exit_code == 0 else f"  (exit code {run.exit_code})"),
         flush=True,
     )
@@ -148,6 +159,8 @@ def main() -> int:
     print("ratios:")
     ratio("profile / floor time", profile.seconds / floor.seconds, "<= 2.5", 2.5, below=True)
     print(f"  {'reader alone / floor time':<34} {runs['reader'].seconds / floor.seconds:8.2f}")
+    # The work done, whatever the cores the machine lent: CPU seconds side by side.
+    print(f"  {'profile / floor CPU time':<34} {profile.cpu_seconds / floor.cpu_seconds:8.2f}")
     if "pandas" in runs:
         ratio("pandas / profile time", runs["pandas"].seconds / profile.seconds, ">= 6", 6)
     ratio("profile peak RSS (MB)", profile.peak_rss_mb, "<= 1024", 1024, below=True)
