@@ -185,3 +185,20 @@ def test_xlsx_without_header_gets_numbered_columns(tmp_path: Path) -> None:
     assert source.info.header is False
     assert source.column_names == ["column_1", "column_2", "column_3"]
     assert table.column("column_3").to_pylist() == ["x", "y", None]
+
+
+def test_jsonl_values_the_fast_parser_refuses_are_still_read(tmp_path: Path) -> None:
+    # Integers past 64 bits and NaN are refused by orjson but read by Python's json
+    # module (which accepts NaN by default), so such lines are not reported as broken.
+    path = tmp_path / "big.jsonl"
+    path.write_text(
+        '{"code": 123456789012345678901234567890, "reading": 1.25}\n'
+        '{"code": 7, "reading": NaN}\n'
+        '{"code": 8, "reading": 2.5e-7, "ok": false}\n',
+        encoding="utf-8",
+    )
+    source, table = _table(path)
+    assert table.column("code").to_pylist() == ["123456789012345678901234567890", "7", "8"]
+    assert table.column("reading").to_pylist() == ["1.25", "NaN", "2.5e-07"]
+    assert table.column("ok").to_pylist() == [None, None, "false"]
+    assert source.parse_errors == []
