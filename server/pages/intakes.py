@@ -16,6 +16,7 @@ from server.pages.profile_cache import cached_profile
 from server.pages.profile_view import column_figures
 from server.pages.templating import templates
 from server.store import Intake, IntakeStatus, Profile, Supplier
+from worker.jobs.judging import judged_by_newest_rules
 
 router = APIRouter(include_in_schema=False)
 
@@ -134,5 +135,7 @@ def intake_page_view(
     ready = intake.status == IntakeStatus.ready and has_profile is not None
     context = {"intake": intake, "user": user, "ready": ready}
     if ready:
+        judged_by_newest_rules(session, intake, settings)
+        session.commit()
         context.update(intake_context(session, intake, settings))
     return templates.TemplateResponse(request, "intake.html", context)

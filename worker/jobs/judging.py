@@ -185,7 +185,8 @@ def rejudge_after_rules(session: Session, supplier_id: int, settings: Settings) 
     Called when a rules version is saved, so that the deliveries still waiting
     for a decision are judged by the rules now in force; decided intakes keep
     the version their decision was made on. Returns the ids judged again (at
-    most REJUDGE_MAX, the newest first); older ones can be judged one by one.
+    most REJUDGE_MAX, the newest first); older ones catch up when they are next
+    looked at (``judged_by_newest_rules``).
     """
     intakes = session.scalars(
         select(Intake)
@@ -193,3 +194,25 @@ def rejudge_after_rules(session: Session, supplier_id: int, settings: Settings) 
         .order_by(Intake.created_at.desc(), Intake.id.desc())
     ).all()
     return _rejudge_undecided(session, list(intakes), settings, keep_chosen=False)
+
+
+def judged_by_newest_rules(session: Session, intake: Intake, settings: Settings) -> None:
+    """Judge ``intake`` again when it waits for a decision and was judged by an older
+    rules version than the supplier's newest.
+
+    Saving rules judges at most REJUDGE_MAX waiting intakes at once; the others
+    catch up here, when their page or judgement is next asked for, so nobody
+    decides on flags from rules no longer in force. Decided intakes keep the
+    version their decision was made on.
+    """
+    if intake.status != IntakeStatus.ready:
+        return
+    judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
+    if judgement is None:
+        return
+    newest = latest_rules(session, intake.supplier_id)
+    if newest is None or judgement.rules_version == newest.version:
+        return
+    if latest_decisions(session, [intake.id]):
+        return
+    judge(session, intake, settings)

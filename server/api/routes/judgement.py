@@ -20,7 +20,7 @@ from server.api.errors import ApiError
 from server.security.masking import visible_profile
 from server.store import Intake, IntakeStatus
 from server.store.reviews import Judgement
-from worker.jobs.judging import judge
+from worker.jobs.judging import judge, judged_by_newest_rules
 
 router = APIRouter(prefix="/intakes/{intake_id}", tags=["judgement"])
 
@@ -82,8 +82,13 @@ def _ready(intake: Intake) -> None:
 
 
 @router.get("/judgement", response_model=JudgementOut)
-def get_judgement(intake: IntakeDep, session: SessionDep, user: CurrentUser) -> JudgementOut:
-    """The intake's judgement as last computed."""
+def get_judgement(
+    intake: IntakeDep, session: SessionDep, settings: SettingsDep, user: CurrentUser
+) -> JudgementOut:
+    """The intake's judgement as last computed (first judged again when it waits for a
+    decision and newer rules were saved since)."""
+    judged_by_newest_rules(session, intake, settings)
+    session.commit()
     judgement = session.scalar(select(Judgement).where(Judgement.intake_id == intake.id))
     if judgement is None:
         raise ApiError(404, f"intake {intake.id} has not been judged yet", code="not_judged")

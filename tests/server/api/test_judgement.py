@@ -98,3 +98,20 @@ def test_accepting_an_earlier_delivery_judges_later_ones_again(api) -> None:
         json={"verdict": "rejected", "reason": "the scale was miscalibrated"},
     )
     assert api.get(url).json()["baseline_intake_id"] is None
+
+
+def test_an_intake_past_the_rejudge_cap_is_judged_by_the_new_rules_when_asked_for(
+    api, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from worker.jobs import judging
+
+    monkeypatch.setattr(judging, "REJUDGE_MAX", 1)
+    supplier = new_supplier(api)
+    older = deliver(api, supplier["id"], crates_csv(5), "week-05.csv")
+    newer = deliver(api, supplier["id"], crates_csv(6), "week-06.csv")
+    rules = {"columns": {"weight_kg": {"kind": "numeric", "max": 20}}}
+    saved = api.put(f"/api/v1/suppliers/{supplier['id']}/rules", json={"document": rules})
+    assert saved.json()["rejudged"] == [newer["id"]]  # the cap: only the newest at once
+    judgement = api.get(f"/api/v1/intakes/{older['id']}/judgement").json()
+    assert judgement["rules_version"] == 1  # caught up on the way out
+    assert "validity.rule-broken" in {f["code"] for f in judgement["flags"]}

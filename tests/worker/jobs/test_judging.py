@@ -100,3 +100,27 @@ def test_new_rules_judge_the_undecided_profiled_intakes(
     assert _judgement(settings, unjudged).rules_version == 1
     assert _judgement(settings, decided).rules_version is None
     assert _judgement(settings, waiting) is None
+
+
+def test_intakes_past_the_rejudge_cap_catch_up_when_looked_at(
+    settings: Settings, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setattr(judging_module, "REJUDGE_MAX", 1)
+    older = _intake(settings, None, FIRST, "week-1.csv")
+    profile_intake(older, settings)
+    with session_scope(settings) as session:
+        supplier_id = session.get(Intake, older).supplier_id
+    newer = _intake(settings, supplier_id, SECOND, "week-2.csv")
+    profile_intake(newer, settings)
+    decided = _intake(settings, supplier_id, FIRST + b"C9,18.0,A\n", "week-3.csv")
+    profile_intake(decided, settings)
+    with session_scope(settings) as session:
+        session.add(Decision(intake_id=decided, verdict="accepted", decided_by="desk"))
+        save_rules(session, supplier_id, {"columns": {"weight_kg": {"max": 40}}}, author="desk")
+        assert judging_module.rejudge_after_rules(session, supplier_id, settings) == [newer]
+    assert _judgement(settings, older).rules_version is None  # past the cap: not yet
+    for intake_id in (older, decided):
+        with session_scope(settings) as session:
+            judging_module.judged_by_newest_rules(session, session.get(Intake, intake_id), settings)
+    assert _judgement(settings, older).rules_version == 1  # caught up when looked at
+    assert _judgement(settings, decided).rules_version is None  # decided: keeps its version
