@@ -79,3 +79,18 @@ def test_viewer_reads_the_rules_without_a_save_control(page: Page, live_server: 
     expect(page.get_by_label(re.compile("Rules \\(YAML\\)"))).to_have_attribute("readonly", "")
     expect(page.get_by_role("button", name="Save as new version")).to_have_count(0)
     expect(page.get_by_role("button", name="Draft")).to_have_count(0)
+
+
+def test_on_a_narrow_screen_the_mistakes_come_into_sight(
+    new_page, live_server: str, screenshot_dir: Path
+) -> None:
+    page = new_page(800, 700)
+    sign_in(page, live_server, "demo-admin")
+    open_rules(page, live_server)
+    heading = page.get_by_role("heading", name="Mistakes")
+    expect(heading).not_to_be_in_viewport()  # below the editor at this width
+    page.get_by_label("Rules (YAML)").fill("columns:\n  salinity_psu:\n    kind: sometimes\n")
+    page.get_by_role("button", name="Check").click()
+    expect(page.locator("#problems li").first).to_contain_text("kind")
+    expect(heading).to_be_in_viewport()
+    page.screenshot(path=str(screenshot_dir / "rules-mistake-800.png"))

@@ -52,6 +52,11 @@
     empty.textContent = list.length ? list.length + " mistake" + (list.length > 1 ? "s" : "") +
       " to fix before saving." : "No mistakes: these rules can be saved.";
     empty.className = list.length ? "error" : "muted small";
+    // On a narrow screen the list sits below the editor: bring it into sight.
+    var heading = document.getElementById("problems-h");
+    if (list.length && heading.getBoundingClientRect().top > window.innerHeight - 80) {
+      heading.scrollIntoView({ block: "start" });
+    }
   }
 
   function check() {
