@@ -95,7 +95,7 @@ def profile_intake(
         intake.attempts += 1
         intake.started_at = utcnow()
         intake.finished_at = None
-        key, original_name = intake.file_key, intake.original_name
+        key, original_name, digest = intake.file_key, intake.original_name, intake.sha256
 
     final_copy = store.columnar_path(key)
     partial_copy = final_copy.with_name(f"{final_copy.stem}.{uuid.uuid4().hex}.part.parquet")
@@ -113,6 +113,7 @@ def profile_intake(
                 progress=reporter.report,
                 columnar_copy=partial_copy,
                 source_name=original_name,
+                sha256=digest,  # computed while the upload streamed in
             )
     except ProfileError as exc:
         partial_copy.unlink(missing_ok=True)

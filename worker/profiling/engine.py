@@ -52,19 +52,23 @@ def profile_file(
     columnar_copy: Path | None = None,
     sheet: str | None = None,
     source_name: str | None = None,
+    sha256: str | None = None,
 ) -> dict[str, Any]:
     """Profile one delivered file and return its profile document (format_version 1).
 
     ``columnar_copy``, when given, is where a Parquet copy of the table is
     written for on-demand questions. ``source_name`` is the name shown in the
     profile (the upload's original name); it defaults to the file's name.
+    ``sha256`` is the file's digest when the caller already knows it (the
+    service computed it while the upload streamed in); otherwise it is computed
+    here, beside the profiling.
     """
     options = options or ProfileOptions()
     path = Path(path)
     report = progress or (lambda stage, share: None)
     if not path.is_file():
         raise ProfileError(f"there is no file at {path.name}")
-    digest = _Digest(path)
+    digest = _Digest(path) if sha256 is None else None
     _load_in_background("scipy.stats")  # needed when summarising; loads while the file is read
     report("reading", 0.0)
     pool = ThreadPoolExecutor(max_workers=options.threads) if options.threads > 1 else None
@@ -94,7 +98,7 @@ def profile_file(
         profile["source"] = {
             "name": source_name or path.name,
             "bytes": path.stat().st_size,
-            "sha256": digest.result(),
+            "sha256": digest.result() if digest is not None else sha256,
             **source.info.as_dict(),
         }
         profile["dataset"]["parse_errors"] = list(source.parse_errors)

@@ -266,3 +266,15 @@ def test_words_in_later_batches_do_not_make_a_text_column_numeric():
     note = _by_name(profiler.finalize())["note"]
     assert note["kind"] == "categorical"
     assert note.get("numeric") is None
+
+
+def test_the_digest_is_computed_unless_the_caller_knows_it(tmp_path) -> None:
+    import hashlib
+
+    path = tmp_path / "tally.csv"
+    path.write_bytes(b"crate,tons\nC1,2.5\nC2,3.0\n")
+    # Reference: hashlib's SHA-256 of the same bytes.
+    computed = profile_file(path)["source"]["sha256"]
+    assert computed == hashlib.sha256(path.read_bytes()).hexdigest()
+    given_digest = "ab" * 32  # what the upload computed while streaming
+    assert profile_file(path, sha256=given_digest)["source"]["sha256"] == given_digest
