@@ -21,7 +21,17 @@ import enum
 from datetime import datetime
 from typing import Any
 
-from sqlalchemy import ForeignKey, Integer, String, Text, UniqueConstraint, func, select
+from sqlalchemy import (
+    Boolean,
+    ForeignKey,
+    Integer,
+    String,
+    Text,
+    UniqueConstraint,
+    func,
+    select,
+    true,
+)
 from sqlalchemy.orm import Mapped, Session, mapped_column, relationship
 
 from server.store.models import Base, Intake, JSONDocument, UTCDateTime, utcnow
@@ -46,7 +56,12 @@ class ThreadStatus(enum.StrEnum):
 
 
 class SupplierRules(Base):
-    """One saved version of a supplier's rules document."""
+    """One saved version of a supplier's rules document.
+
+    ``rejudge_waiting``: the version applies to the deliveries still waiting for a
+    decision (they are judged again with it, at once or when next opened); False
+    when it was saved asking to leave their judgements as they were.
+    """
 
     __tablename__ = "supplier_rules"
     __table_args__ = (UniqueConstraint("supplier_id", "version"),)
@@ -60,6 +75,7 @@ class SupplierRules(Base):
     note: Mapped[str] = mapped_column(Text, default="")
     created_by: Mapped[str] = mapped_column(String(100))
     created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
+    rejudge_waiting: Mapped[bool] = mapped_column(Boolean, default=True, server_default=true())
 
 
 class Judgement(Base):
@@ -160,7 +176,13 @@ def latest_rules(session: Session, supplier_id: int) -> SupplierRules | None:
 
 
 def save_rules(
-    session: Session, supplier_id: int, document: dict[str, Any], *, author: str, note: str = ""
+    session: Session,
+    supplier_id: int,
+    document: dict[str, Any],
+    *,
+    author: str,
+    note: str = "",
+    rejudge_waiting: bool = True,
 ) -> SupplierRules:
     """Store ``document`` as the supplier's next rules version (already validated)."""
     current = session.scalar(
@@ -172,6 +194,7 @@ def save_rules(
         document=document,
         note=note,
         created_by=author,
+        rejudge_waiting=rejudge_waiting,
     )
     session.add(rules)
     session.flush()

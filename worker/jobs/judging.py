@@ -203,7 +203,8 @@ def judged_by_newest_rules(session: Session, intake: Intake, settings: Settings)
     Saving rules judges at most REJUDGE_MAX waiting intakes at once; the others
     catch up here, when their page or judgement is next asked for, so nobody
     decides on flags from rules no longer in force. Decided intakes keep the
-    version their decision was made on.
+    version their decision was made on, and a version saved asking to leave the
+    waiting intakes alone (``rejudge_waiting`` False) leaves them alone here too.
     """
     if intake.status != IntakeStatus.ready:
         return
@@ -211,7 +212,7 @@ def judged_by_newest_rules(session: Session, intake: Intake, settings: Settings)
     if judgement is None:
         return
     newest = latest_rules(session, intake.supplier_id)
-    if newest is None or judgement.rules_version == newest.version:
+    if newest is None or not newest.rejudge_waiting or judgement.rules_version == newest.version:
         return
     if latest_decisions(session, [intake.id]):
         return

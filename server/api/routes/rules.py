@@ -159,7 +159,12 @@ def put_rules(
     """Save the document as the supplier's next rules version (admins)."""
     find_supplier(session, supplier_id)
     rules = save_rules(
-        session, supplier_id, _validated(body.document), author=user.name, note=body.note
+        session,
+        supplier_id,
+        _validated(body.document),
+        author=user.name,
+        note=body.note,
+        rejudge_waiting=rejudge,
     )
     session.flush()
     rejudged = rejudge_after_rules(session, supplier_id, settings) if rejudge else []
