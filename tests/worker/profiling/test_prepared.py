@@ -85,3 +85,16 @@ def test_long_cells_skip_the_token_check_and_short_ones_keep_it():
     prepared = prepare_batch(mixed, 0, plan)
     assert prepared.missing["code"].tolist() == [False, True, True, False]
     assert prepared.missing_counts["code"].tokens == {"null": 1, "N/A": 1}
+
+
+def test_numbers_of_a_clean_label_column_equal_parsing_every_cell():
+    # A label column that is also a numeric candidate parses its dictionary once;
+    # the reference is parse_numbers over every cell.
+    grades = pa.array(["3", "7", None, "3", "x", "12.5", "7", None, "-1"])
+    plan = _plan(numeric=frozenset({"grade"}), labels=frozenset({"grade"}))
+    batch = prepare_batch(pa.record_batch({"grade": grades}), 0, plan)
+    assert "grade" in batch.encoded  # the dictionary path was taken
+    np.testing.assert_array_equal(batch.numbers["grade"], parse_numbers(grades))
+    nothing = pa.nulls(4, pa.string())
+    batch = prepare_batch(pa.record_batch({"grade": nothing}), 0, plan)
+    assert np.isnan(batch.numbers["grade"]).all()
