@@ -36,9 +36,11 @@ def test_admin_drafts_checks_fixes_and_saves(
     first = int(re.search(r"saved=(\d+)", page.url).group(1))
     expect(page.get_by_role("heading", name=f"Version {first}")).to_be_visible()
 
-    editor.fill(drafted.replace("kind: numeric", "kind: sometimes", 1))
     asked = []
+    # Listening before the edit, not just before the click: playwright subscribes to
+    # dialogs without waiting, and an unheard dialog is dismissed for us.
     page.once("dialog", lambda dialog: (asked.append(dialog.message), dialog.dismiss()))
+    editor.fill(drafted.replace("kind: numeric", "kind: sometimes", 1))
     page.get_by_role("button", name="Draft").click()  # edits are not replaced unasked
     expect(editor).to_have_value(re.compile("kind: sometimes"))
     assert asked and "Replace your edits" in asked[0]
