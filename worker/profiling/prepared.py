@@ -259,14 +259,11 @@ def _label_numbers(prepared: PreparedColumn, plan: BatchPlan) -> np.ndarray:
     """
     encoded = prepared.encoded
     assert encoded is not None
-    numbers = np.full(len(encoded), np.nan)
-    if len(encoded.dictionary):
-        per_label = parse_numbers(
-            encoded.dictionary, decimal=plan.decimal, thousands=plan.thousands
-        )
-        codes = encoded.indices.fill_null(0).to_numpy(zero_copy_only=False)
-        numbers = per_label[codes]
-        numbers[prepared.missing] = np.nan
+    if not len(encoded.dictionary):  # every cell null
+        return np.full(len(encoded), np.nan)
+    per_label = parse_numbers(encoded.dictionary, decimal=plan.decimal, thousands=plan.thousands)
+    numbers = per_label[encoded.indices.fill_null(0).to_numpy(zero_copy_only=False)]
+    numbers[prepared.missing] = np.nan
     return numbers
 
 

@@ -121,6 +121,9 @@ class JsonlSource(TableSource):
             self._raw.close()
 
 
+_INT64_BOUND = 2.0**63  # orjson gives a float for an integer this large
+
+
 def _parse(line: str) -> Any:
     """One line's JSON value, parsed by orjson (several times faster than the standard
     library). orjson turns integers past 64 bits into floats, so a line with a value that
@@ -137,7 +140,6 @@ def _parse(line: str) -> Any:
     return value
 
 
-_INT64_BOUND = 2.0**63
 _ENCODER = json.JSONEncoder(ensure_ascii=False)  # one encoder, not one per call of json.dumps
 
 
