@@ -17,7 +17,7 @@ from server.api.routes.auth import client_address
 from server.pages.templating import templates
 from server.security.access import SESSION_COOKIE
 from server.security.csrf import same_origin
-from server.security.sessions import session_lifetime, set_session_cookie
+from server.security.sessions import start_session
 from server.security.signin import change_own_password, sign_in, sign_out
 from server.store import accounts
 
@@ -69,18 +69,16 @@ def sign_in_submit(
             # The form again with the reason; a refused password is no error of the page.
             status_code=429 if outcome.retry_after is not None else 200,
         )
-    previous = request.cookies.get(SESSION_COOKIE)
-    if previous:  # a sign-in never carries on an earlier session (no session fixation)
-        accounts.close_session(session, previous)
-    secret = accounts.open_session(
+    response = RedirectResponse(local_target(next), status_code=303)
+    start_session(
         session,
         outcome.user,
-        lifetime=session_lifetime(settings.security),
+        response,
+        settings.security,
         address=client_address(request),
+        previous=request.cookies.get(SESSION_COOKIE),
     )
     session.commit()
-    response = RedirectResponse(local_target(next), status_code=303)
-    set_session_cookie(response, secret, settings.security)
     return response
 
 
@@ -134,15 +132,9 @@ def change_password_submit(
                 "password_message": refused,
             },
         )
-    secret = accounts.open_session(
-        session,
-        owner,
-        lifetime=session_lifetime(settings.security),
-        address=client_address(request),
-    )
-    session.commit()
     response = RedirectResponse("/account?password=changed", status_code=303)
-    set_session_cookie(response, secret, settings.security)
+    start_session(session, owner, response, settings.security, address=client_address(request))
+    session.commit()
     return response
 
 

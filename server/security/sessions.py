@@ -11,10 +11,12 @@ from __future__ import annotations
 
 from datetime import timedelta
 
+from sqlalchemy.orm import Session
 from starlette.responses import Response
 
 from server.security.access import SESSION_COOKIE
 from server.settings import SecuritySettings
+from server.store import accounts
 
 
 def session_lifetime(security: SecuritySettings) -> timedelta:
@@ -33,6 +35,29 @@ def set_session_cookie(response: Response, secret: str, security: SecuritySettin
         samesite="lax",
         secure=security.https,
     )
+
+
+def start_session(
+    db: Session,
+    user: accounts.User,
+    response: Response,
+    security: SecuritySettings,
+    *,
+    address: str,
+    previous: str | None = None,
+) -> str:
+    """Open a server-side session for ``user``, put its cookie on ``response`` and
+    return its secret (the CSRF token is derived from it).
+
+    ``previous`` is the secret of the browser's earlier session, given at sign-in:
+    it is closed first, so a sign-in never carries on an earlier session (no
+    session fixation). The caller commits.
+    """
+    if previous:
+        accounts.close_session(db, previous)
+    secret = accounts.open_session(db, user, lifetime=session_lifetime(security), address=address)
+    set_session_cookie(response, secret, security)
+    return secret
 
 
 def clear_session_cookie(response: Response, security: SecuritySettings) -> None:

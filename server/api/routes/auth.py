@@ -14,7 +14,7 @@ from server.api.deps import CurrentUser, SessionDep, SettingsDep, SignedInUser
 from server.api.errors import ApiError
 from server.security.access import SESSION_COOKIE
 from server.security.csrf import csrf_token
-from server.security.sessions import session_lifetime, set_session_cookie
+from server.security.sessions import start_session
 from server.security.signin import change_own_password, sign_in, sign_out
 from server.store import accounts
 
@@ -72,17 +72,15 @@ def api_sign_in(
             )
         raise ApiError(401, outcome.message, code="not_signed_in")
     user = outcome.user
-    previous = request.cookies.get(SESSION_COOKIE)
-    if previous:  # a sign-in never carries on an earlier session (no session fixation)
-        accounts.close_session(session, previous)
-    secret = accounts.open_session(
+    secret = start_session(
         session,
         user,
-        lifetime=session_lifetime(settings.security),
+        response,
+        settings.security,
         address=client_address(request),
+        previous=request.cookies.get(SESSION_COOKIE),
     )
     session.commit()
-    set_session_cookie(response, secret, settings.security)
     return Me(
         id=user.id,
         name=user.name,
@@ -133,13 +131,7 @@ def change_password(
     response = Response(status_code=204)
     if user.via == "session":
         owner = session.get(accounts.User, user.id)
-        secret = accounts.open_session(
-            session,
-            owner,
-            lifetime=session_lifetime(settings.security),
-            address=client_address(request),
-        )
-        set_session_cookie(response, secret, settings.security)
+        start_session(session, owner, response, settings.security, address=client_address(request))
     session.commit()
     return response
 
