@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import copy
 import hashlib
-import importlib
 import os
 import queue
 import threading
@@ -69,7 +68,6 @@ def profile_file(
     if not path.is_file():
         raise ProfileError(f"there is no file at {path.name}")
     digest = _Digest(path) if sha256 is None else None
-    _load_in_background("scipy.stats")  # needed when summarising; loads while the file is read
     report("reading", 0.0)
     pool = ThreadPoolExecutor(max_workers=options.threads) if options.threads > 1 else None
     with open_table(path, options=options, sheet=sheet) as source:
@@ -380,11 +378,6 @@ def _batches(source: Any, ahead: int = 3) -> Iterator[pa.RecordBatch]:
     finally:
         stop.set()
         worker.join()
-
-
-def _load_in_background(module: str) -> None:
-    """Import ``module`` in a thread, so its second of loading overlaps the reading."""
-    threading.Thread(target=importlib.import_module, args=(module,), daemon=True).start()
 
 
 class _Digest:

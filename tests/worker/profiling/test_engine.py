@@ -278,3 +278,32 @@ def test_the_digest_is_computed_unless_the_caller_knows_it(tmp_path) -> None:
     assert computed == hashlib.sha256(path.read_bytes()).hexdigest()
     given_digest = "ab" * 32  # what the upload computed while streaming
     assert profile_file(path, sha256=given_digest)["source"]["sha256"] == given_digest
+
+
+def test_profiling_does_not_load_scipy_stats(tmp_path) -> None:
+    # scipy.stats costs about 0.6 s of imports per process; the engine's density,
+    # chi-square and p-values do without it (they are checked against it elsewhere).
+    import subprocess
+    import sys
+
+    rng = np.random.default_rng(8)
+    frame = pd.DataFrame(
+        {
+            "berth": rng.choice(["north", "south"], 300),
+            "cargo": rng.choice(["dry", "reefer", "bulk"], 300),
+            "tons": rng.normal(20, 4, 300).round(2),
+        }
+    )
+    path = tmp_path / "berths.csv"
+    frame.to_csv(path, index=False)
+    script = (
+        "import sys\n"
+        "from worker.profiling import profile_file\n"
+        "profile = profile_file(sys.argv[1])\n"
+        "assert profile['crosstabs'] and profile['columns'][2]['numeric']['density']\n"
+        "print('scipy.stats' in sys.modules)\n"
+    )
+    run = subprocess.run(
+        [sys.executable, "-c", script, str(path)], capture_output=True, text=True, check=True
+    )
+    assert run.stdout.strip() == "False"

@@ -11,6 +11,8 @@ from typing import Any
 
 import numpy as np
 
+from worker.profiling.relations.crosstab import chi_square_p_value
+
 
 @dataclass(frozen=True)
 class ContingencyTable:
@@ -131,6 +133,4 @@ def chi_square(counts: np.ndarray) -> ChiSquare:
     expected = ContingencyTable([], [], counts).expected
     statistic = float(((counts - expected) ** 2 / expected).sum())
     dof = (counts.shape[0] - 1) * (counts.shape[1] - 1)
-    from scipy import stats  # loaded when needed (slow to import)
-
-    return ChiSquare(statistic, dof, float(stats.chi2.sf(statistic, dof)))
+    return ChiSquare(statistic, dof, chi_square_p_value(statistic, dof))
