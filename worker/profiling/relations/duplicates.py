@@ -18,6 +18,7 @@ analysis of a near-optimal cardinality estimation algorithm", AofA.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -54,7 +55,7 @@ class DuplicateState:
         self.example_groups = relations.duplicate_examples
         self.example_rows = relations.duplicate_example_rows
         self.rows = 0
-        self._parts: list[tuple[int, np.ndarray]] = []  # (offset of the first row, hashes)
+        self._parts: list[_Part] = []
         self._sketch: HyperLogLog | None = None
         self._prefix: dict[str, Any] | None = None  # exact findings before the bound was passed
 
@@ -63,19 +64,26 @@ class DuplicateState:
         self._add(batch.offset, row_hashes(batch.raw))
 
     def _add(self, offset: int, hashes: np.ndarray) -> None:
-        self.rows += len(hashes)
         if self._sketch is not None:
+            self.rows += len(hashes)
             self._sketch.update(hashes)
             return
-        self._parts.append((offset, hashes))
+        self._take(_Part.of(offset, hashes))
+
+    def _take(self, part: _Part) -> None:
+        self.rows += len(part.hashes)
+        if self._sketch is not None:
+            self._sketch.update(part.hashes)
+            return
+        self._parts.append(part)
         if self.rows > self.bound:
             self._to_sketch()
 
     def _to_sketch(self) -> None:
         self._prefix = self._exact()
         self._sketch = HyperLogLog()
-        for _, hashes in self._parts:
-            self._sketch.update(hashes)
+        for part in self._parts:
+            self._sketch.update(part.hashes)
         self._parts = []
 
     def merge(self, other: DuplicateState) -> DuplicateState:
@@ -83,75 +91,70 @@ class DuplicateState:
         first, second = sorted([self, other], key=lambda state: state._first_offset())
         merged._prefix = first._prefix
         if first._sketch is None and second._sketch is None:
-            for offset, hashes in [*first._parts, *second._parts]:
-                merged._add(offset, hashes)
+            for part in [*first._parts, *second._parts]:
+                merged._take(part)
             return merged
         merged._sketch = HyperLogLog()
         merged.rows = first.rows + second.rows
         for state in (first, second):
             if state._sketch is not None:
                 merged._sketch.merge(state._sketch)
-            for _, hashes in state._parts:
-                merged._sketch.update(hashes)
+            for part in state._parts:
+                merged._sketch.update(part.hashes)
         if merged._prefix is None:
             merged._prefix = first._exact()
         return merged
 
     def _first_offset(self) -> int:
-        return min((offset for offset, _ in self._parts), default=0)
+        return min((part.offset for part in self._parts), default=0)
 
     def _exact(self) -> dict[str, Any]:
         """Exact count and first examples from the kept hashes.
 
-        The hashes are split by their top bits into ``_SLICES`` slices; each slice is
-        gathered, sorted and its equal neighbours counted in turn, so the extra
-        memory is a sixteenth of the hashes instead of a sorted copy of all of them
-        (which made the peak grow with the rows). The examples are then found by
-        scanning the batches in row order against the few repeated hashes; no
-        per-row table of (hash, row) is ever built.
+        Each batch's hashes were split by their top bits into ``2**_SLICE_BITS``
+        slices when they came in (``_Part``); here each slice is gathered from every
+        batch, sorted (polars, on every core) and its equal neighbours counted in
+        turn, so the extra memory is a sixteenth of the hashes instead of a sorted
+        copy of all of them (which made the peak grow with the rows). The examples
+        are then found among the batches against the few repeated hashes; no
+        table of (hash, row) over every row is ever built.
         """
-        parts = sorted(self._parts, key=lambda part: part[0])
+        parts = sorted(self._parts, key=lambda part: part.offset)
         if not parts:
             return {"duplicate_rows": 0, "examples": []}
-        tops = [(h >> np.uint64(64 - _SLICE_BITS)).astype(np.uint8) for _, h in parts]
         repeated = 0
         found: list[np.ndarray] = []
         for value in range(1 << _SLICE_BITS):
-            chunk = np.concatenate([h[t == value] for (_, h), t in zip(parts, tops, strict=True)])
-            chunk.sort()
-            equal = chunk[1:] == chunk[:-1]
+            chunk = pl.Series(np.concatenate([part.slice(value) for part in parts])).sort()
+            ordered = chunk.to_numpy()
+            equal = ordered[1:] == ordered[:-1]
             count = int(np.count_nonzero(equal))
             if count:
                 repeated += count
-                found.append(np.unique(chunk[1:][equal]))
-        del tops
+                found.append(np.unique(ordered[1:][equal]))
         examples: list[list[int]] = []
         if repeated and self.example_groups:
             examples = self._examples(parts, np.sort(np.concatenate(found)))
         return {"duplicate_rows": repeated, "examples": examples}
 
-    def _examples(
-        self, parts: list[tuple[int, np.ndarray]], repeated: np.ndarray
-    ) -> list[list[int]]:
+    def _examples(self, parts: list[_Part], repeated: np.ndarray) -> list[list[int]]:
         """The first ``example_groups`` groups of equal rows (by their first row), each
         with its first ``example_rows`` row numbers."""
         chosen: list[int] = []  # hashes of the groups, in order of their first row
-        for _, hashes in parts:
-            hits = hashes[_member(hashes, repeated)]
-            if hits.size:
-                distinct, first = np.unique(hits, return_index=True)
+        for part in parts:
+            rows, hashes = part.members(repeated)
+            if hashes.size:
+                hashes = hashes[np.argsort(rows, kind="stable")]
+                distinct, first = np.unique(hashes, return_index=True)
                 for value in distinct[np.argsort(first)][: self.example_groups]:
                     if int(value) not in chosen:
                         chosen.append(int(value))
             if len(chosen) >= self.example_groups:
                 break
         wanted = np.sort(np.array(chosen[: self.example_groups], dtype=np.uint64))
-        found_rows, found_hashes = [], []
-        for offset, hashes in parts:
-            positions = np.flatnonzero(_member(hashes, wanted))
-            found_rows.append(positions + offset)
-            found_hashes.append(hashes[positions])
-        rows, hashes = np.concatenate(found_rows), np.concatenate(found_hashes)
+        found = [part.members(wanted) for part in parts]
+        rows = np.concatenate([part_rows for part_rows, _ in found])
+        hashes = np.concatenate([part_hashes for _, part_hashes in found])
         groups = []
         for value in chosen[: self.example_groups]:
             members = rows[hashes == np.uint64(value)]
@@ -170,6 +173,33 @@ class DuplicateState:
             "distinct_rows_relative_error": float(self._sketch.relative_error),
             "examples": prefix["examples"],
         }
+
+
+@dataclass(frozen=True)
+class _Part:
+    """One batch's row hashes, grouped by their top bits (slice by slice, rows in order
+    within a slice), with each hash's row within the batch."""
+
+    offset: int  # row number of the batch's first row
+    hashes: np.ndarray  # uint64, slice 0 first
+    positions: np.ndarray  # row within the batch of each hash (uint16 or uint32)
+    bounds: np.ndarray  # slice v is hashes[bounds[v] : bounds[v + 1]]
+
+    @classmethod
+    def of(cls, offset: int, hashes: np.ndarray) -> _Part:
+        tops = (hashes >> np.uint64(64 - _SLICE_BITS)).astype(np.uint8)
+        order = np.argsort(tops, kind="stable")  # a radix sort of one byte
+        width = np.uint16 if len(hashes) <= 1 << 16 else np.uint32
+        bounds = np.concatenate([[0], np.cumsum(np.bincount(tops, minlength=1 << _SLICE_BITS))])
+        return cls(offset, hashes[order], order.astype(width), bounds)
+
+    def slice(self, value: int) -> np.ndarray:
+        return self.hashes[self.bounds[value] : self.bounds[value + 1]]
+
+    def members(self, sorted_set: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Row numbers and hashes of this batch's rows whose hash is in ``sorted_set``."""
+        hits = np.flatnonzero(_member(self.hashes, sorted_set))
+        return self.positions[hits].astype(np.int64) + self.offset, self.hashes[hits]
 
 
 def _member(values: np.ndarray, sorted_set: np.ndarray) -> np.ndarray:
