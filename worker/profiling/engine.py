@@ -28,7 +28,6 @@ from worker.profiling.limits import check_cells, check_columns
 from worker.profiling.options import ProfileOptions
 from worker.profiling.prepared import (
     BatchPlan,
-    PreparedBatch,
     PreparedColumn,
     assemble_batch,
     prepare_column,
@@ -132,7 +131,7 @@ class TableProfiler:
         self.relations: RelationsState | None = None
         self.duplicates = DuplicateState(self.column_names, options)
         self.first_row = first_row
-        self._pending: list[Future[None]] = []
+        self._pending: dict[str, Future[None]] = {}
         self.rows = 0
         self._plan = self._make_plan()
 
@@ -180,33 +179,33 @@ class TableProfiler:
             self.columns[name].update(column, prepared)
             return name, prepared
 
+        # Row hashes need only the raw cells: they are taken while the columns are prepared.
+        self._in_order("duplicates", self.duplicates.update, raw, offset)
         prepared_columns = dict(self._map(one_column, self.column_names))
         batch = assemble_batch(raw, offset, prepared_columns)
         if self.relations is None:
             self.relations = RelationsState(
                 self._relation_numeric(), self._relation_labels(), self.options
             )
-        self._across(batch)
+        # The across-column figures of this batch run while the next batch's columns are.
+        self._in_order("relations", self.relations.update, batch)
         self.rows += raw.num_rows
 
-    def _across(self, batch: PreparedBatch) -> None:
-        """Update the across-column states with a batch. With a pool, they run while the
-        next batch's columns are profiled; each state still takes its batches in order."""
-        assert self.relations is not None
+    def _in_order(self, lane: str, function: Callable[..., None], *args: Any) -> None:
+        """Run ``function`` in the pool once the same lane's previous call has finished,
+        so each across-column state takes its batches in table order."""
         if self.pool is None:
-            self.relations.update(batch)
-            self.duplicates.update(batch)
+            function(*args)
             return
-        self.wait()
-        self._pending = [
-            self.pool.submit(self.relations.update, batch),
-            self.pool.submit(self.duplicates.update, batch),
-        ]
+        previous = self._pending.pop(lane, None)
+        if previous is not None:
+            previous.result()
+        self._pending[lane] = self.pool.submit(function, *args)
 
     def wait(self) -> None:
         """Wait for the across-column updates still running (errors surface here)."""
-        pending, self._pending = self._pending, []
-        for future in pending:
+        pending, self._pending = self._pending, {}
+        for future in pending.values():
             future.result()
 
     def _map(self, function: Callable[[Any], Any], items: list[Any]) -> Iterator[Any]:

@@ -159,33 +159,33 @@ class GroupMoments:
         codes: Mapping[str, np.ndarray],
         sizes: Mapping[str, int],
     ) -> None:
-        """Add one batch: per label column, sparse products give every numeric
-        column's per-label count, sum and sum of squares (of values shifted by the
-        batch's column means, so the squares do not swamp the spread)."""
+        """Add one batch: sparse products give every numeric column's per-label count,
+        sum and sum of squares (of values shifted by the batch's column means, so the
+        squares do not swamp the spread).
+
+        The label columns are stacked into one indicator matrix (one row per label
+        of every column), so the numbers are read once for all of them. The counts
+        are each label's rows less its incomplete rows' gaps (``ShiftedBatch.gaps``).
+        """
         if not values.names or not codes:
             return
-        shift = values.shift
-        for label_name, code in codes.items():
-            size = sizes[label_name]
-            present = code >= 0
-            # One entry per row with a label: a CSC matrix built as is, with no sorting.
-            onehot = sparse.csc_matrix(
-                (
-                    np.ones(int(present.sum())),
-                    code[present],
-                    np.concatenate([[0], np.cumsum(present)]),
-                ),
-                shape=(size, len(code)),
-            )
-            # Three products, not one over a stacked copy: the copy cost more than a call.
-            n = np.asarray(onehot @ values.weights)
-            total = np.asarray(onehot @ values.z)
-            squares = np.asarray(onehot @ values.squares)
-            with np.errstate(invalid="ignore", divide="ignore"):
-                inner = np.where(n > 0, total / n, 0.0)
-            m2 = np.maximum(squares - total * inner, 0.0)
-            mean = np.where(n > 0, inner + shift, 0.0)
-            self._absorb(label_name, (n, mean, m2), size)
+        names = list(codes)
+        table = np.column_stack([codes[name] for name in names])
+        bases = np.concatenate([[0], np.cumsum([sizes[name] for name in names])])
+        labels = int(bases[-1])
+        onehot = _indicator(table, bases[:-1], labels)
+        total = np.asarray(onehot @ values.z)[:labels]
+        squares = np.asarray(onehot @ values.squares)[:labels]
+        per_label = np.bincount(onehot.indices, minlength=labels + 1)[:labels]
+        gaps = np.asarray(_indicator(table[values.incomplete], bases[:-1], labels) @ values.gaps)
+        n = per_label[:, None] - gaps[:labels]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            inner = np.where(n > 0, total / n, 0.0)
+        m2 = np.maximum(squares - total * inner, 0.0)
+        mean = np.where(n > 0, inner + values.shift, 0.0)
+        for k, label_name in enumerate(names):
+            block = slice(int(bases[k]), int(bases[k + 1]))
+            self._absorb(label_name, (n[block], mean[block], m2[block]), sizes[label_name])
 
     def _absorb(self, label_name: str, batch, size: int, remap: np.ndarray | None = None):
         n_b, mean_b, m2_b = batch
@@ -224,6 +224,22 @@ class GroupMoments:
         for label_name, (n, mean, m2) in self.stats.items():
             for j, num_name in enumerate(self.numeric):
                 yield (num_name, label_name), (n[:, j], mean[:, j], m2[:, j])
+
+
+def _indicator(table: np.ndarray, bases: np.ndarray, labels: int) -> sparse.csc_matrix:
+    """(labels + 1) × rows matrix with a 1 where a row has a label.
+
+    ``table`` holds each row's code in every label column (-1 where missing),
+    ``bases`` where each column's labels start. A missing label is put in the
+    extra last row, which the caller drops: every row then has one entry per
+    column, and the matrix is built in CSC form as is, with no masking (measured
+    five times cheaper than leaving the missing labels out).
+    """
+    indices = np.where(table >= 0, table + bases, labels).astype(np.int32).ravel()
+    indptr = np.arange(0, indices.size + 1, max(table.shape[1], 1), dtype=np.int32)
+    return sparse.csc_matrix(
+        (np.ones(indices.size), indices, indptr), shape=(labels + 1, table.shape[0])
+    )
 
 
 def _pad(values: np.ndarray, size: int) -> np.ndarray:

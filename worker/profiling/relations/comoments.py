@@ -69,14 +69,29 @@ class ShiftedBatch:
     shift: np.ndarray
 
     @cached_property
-    def weights(self) -> np.ndarray:
-        """``valid`` as 0.0/1.0, computed once for every state that multiplies by it."""
-        return self.valid.astype(np.float64)
-
-    @cached_property
     def squares(self) -> np.ndarray:
         """z², computed once for every state that needs it."""
         return self.z * self.z
+
+    @cached_property
+    def incomplete(self) -> np.ndarray:
+        """Positions of the rows where at least one column is missing."""
+        return np.flatnonzero(~self.valid.all(axis=1))
+
+    @cached_property
+    def gaps(self) -> np.ndarray:
+        """Over the incomplete rows only: 1.0 where a value is missing, else 0.0.
+
+        Counts and sums over "the rows where column j is present" are the totals
+        over all rows less what the incomplete rows hold; delivered files miss a
+        few values, so these products run over a small share of the rows.
+        """
+        return (~self.valid[self.incomplete]).astype(np.float64)
+
+    def column_totals(self, values: np.ndarray) -> np.ndarray:
+        """Column sums of a (rows × columns) array, as a product with ones: six times
+        cheaper than sum(axis=0) over rows of a few values."""
+        return np.ones(values.shape[0]) @ values
 
     @classmethod
     def of(cls, numbers: Mapping[str, np.ndarray], names: list[str]) -> ShiftedBatch:
@@ -87,11 +102,10 @@ class ShiftedBatch:
         valid = ~np.isnan(x)
         missing = ~valid
         x[missing] = 0.0
-        # Column sums as a product with ones: six times cheaper than sum(axis=0) over
-        # rows of a few values, and the shift need not be exact (any shift keeps the
-        # co-moments exact; it only keeps their sums small).
-        ones = np.ones(rows)
-        shift = (ones @ x) / np.maximum(rows - np.count_nonzero(missing, axis=0), 1)
+        # Column sums as a product with ones (see ``column_totals``); the shift need
+        # not be exact (any shift keeps the co-moments exact; it only keeps their
+        # sums small).
+        shift = (np.ones(rows) @ x) / np.maximum(rows - np.count_nonzero(missing, axis=0), 1)
         x -= shift
         x[missing] = 0.0
         return cls(list(names), valid, x, shift)
@@ -123,10 +137,17 @@ class CoMoments:
         z, shift = batch_values.z, batch_values.shift
         if z.shape[0] == 0:
             return
-        w = batch_values.weights
-        counts = w.T @ w  # [i, j]: rows where both are present
-        sums = z.T @ w  # [i, j]: Σ z_i over rows where j (and so i) are present
-        squares = batch_values.squares.T @ w
+        rows = z.shape[0]
+        gaps = batch_values.gaps
+        z_gaps = z[batch_values.incomplete]
+        lost = gaps.sum(axis=0)
+        # [i, j]: rows where both are present (all, less those missing i or j).
+        counts = rows - lost[:, None] - lost[None, :] + gaps.T @ gaps
+        # [i, j]: Σ z_i over rows where j (and so i) are present; z is 0 where i is missing.
+        sums = batch_values.column_totals(z)[:, None] - z_gaps.T @ gaps
+        squares = batch_values.column_totals(batch_values.squares)[:, None] - (
+            (z_gaps * z_gaps).T @ gaps
+        )
         cross = z.T @ z
         with np.errstate(invalid="ignore", divide="ignore"):
             inner_mean = np.where(counts > 0, sums / counts, 0.0)

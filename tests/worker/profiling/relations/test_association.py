@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 import pyarrow as pa
 import pytest
 from scipy.stats import f_oneway
@@ -98,3 +99,42 @@ def test_eta_matches_direct_sums_and_one_way_anova() -> None:
     # Reference: scipy.stats.f_oneway; eta² = F(k-1) / (F(k-1) + N-k).
     f = f_oneway(*(x[groups == g] for g in ("north", "south", "east"))).statistic
     assert value**2 == pytest.approx(f * 2 / (f * 2 + 2000 - 3), rel=1e-9)
+
+
+def test_eta_of_every_pair_skips_missing_numbers_and_labels() -> None:
+    # Two label and two numeric columns with gaps, counted together in one pass;
+    # reference: pandas groupby over the rows where both cells of a pair are present.
+    rng = np.random.default_rng(12)
+    rows = 2500
+    frame = pd.DataFrame(
+        {
+            "g": rng.choice(["north", "south", "east"], rows),
+            "h": rng.choice(["dry", "reefer", "bulk", "tank"], rows),
+            "x": rng.normal(50, 5, rows),
+            "y": rng.normal(-3, 2, rows),
+        }
+    )
+    frame["x"] += frame["g"].map({"north": 0.0, "south": 4.0, "east": -2.0})
+    frame.loc[rng.random(rows) < 0.08, "x"] = np.nan
+    frame.loc[rng.random(rows) < 0.03, "y"] = np.nan
+    frame.loc[rng.random(rows) < 0.05, "g"] = None
+    frame.loc[rng.random(rows) < 0.10, "h"] = None
+    codes = LabelCodes(["g", "h"], 10)
+    moments = GroupMoments(["x", "y"])
+    for lo in range(0, rows, 400):
+        part = frame.iloc[lo : lo + 400]
+        encoded = codes.encode({name: pa.array(part[name]) for name in ("g", "h")})
+        values = ShiftedBatch.of({name: part[name].to_numpy() for name in ("x", "y")}, ["x", "y"])
+        sizes = {name: len(codes.index[name]) for name in ("g", "h")}
+        moments.update(values, encoded, sizes)
+    found = dict(moments.pairs())
+    for number in ("x", "y"):
+        for label in ("g", "h"):
+            both = frame[[number, label]].dropna()
+            grand = both[number].mean()
+            groups = both.groupby(label)[number]
+            between = float((groups.count() * (groups.mean() - grand) ** 2).sum())
+            total = float(((both[number] - grand) ** 2).sum())
+            value, n = eta(*found[(number, label)])
+            assert n == len(both)
+            assert value == pytest.approx(np.sqrt(between / total), rel=1e-9)

@@ -13,13 +13,6 @@ from worker.profiling.relations.duplicates import DuplicateState, row_hashes
 from worker.profiling.relations.options import RelationsOptions
 
 
-class RawBatch:
-    """What DuplicateState reads from a prepared batch: the raw cells and the offset."""
-
-    def __init__(self, raw: pa.RecordBatch, offset: int) -> None:
-        self.raw, self.offset = raw, offset
-
-
 def text_frame(rows: int, seed: int) -> pd.DataFrame:
     # Planted duplicates: a delivery where some lines were sent twice (truth by construction).
     rng = np.random.default_rng(seed)
@@ -39,7 +32,7 @@ def state_of(frame: pd.DataFrame, batch_rows: int, offset: int = 0, **bounds) ->
     state = DuplicateState(list(frame.columns), options)
     table = pa.Table.from_pandas(frame.reset_index(drop=True), preserve_index=False)
     for batch in table.to_batches(max_chunksize=batch_rows):
-        state.update(RawBatch(batch, offset))
+        state.update(batch, offset)
         offset += batch.num_rows
     return state
 
