@@ -59,34 +59,25 @@ class PairMoments:
 class ShiftedBatch:
     """A batch of numeric columns as a matrix, shifted by each column's batch mean.
 
-    ``valid`` is True where a value is present; ``z`` is value − shift there and 0
-    elsewhere, so sums over z skip missing values by themselves.
+    ``z`` is value − shift where a value is present and 0 elsewhere, so sums over
+    z skip missing values by themselves. ``incomplete`` lists the rows where at
+    least one column is missing and ``gaps`` marks, over those rows only, the
+    missing cells (1.0): counts and sums over "the rows where column j is
+    present" are the totals over all rows less what the incomplete rows hold, and
+    delivered files miss few values, so those products run over a small share of
+    the rows.
     """
 
     names: list[str]
-    valid: np.ndarray
     z: np.ndarray
     shift: np.ndarray
+    incomplete: np.ndarray
+    gaps: np.ndarray
 
     @cached_property
     def squares(self) -> np.ndarray:
         """z², computed once for every state that needs it."""
         return self.z * self.z
-
-    @cached_property
-    def incomplete(self) -> np.ndarray:
-        """Positions of the rows where at least one column is missing."""
-        return np.flatnonzero(~self.valid.all(axis=1))
-
-    @cached_property
-    def gaps(self) -> np.ndarray:
-        """Over the incomplete rows only: 1.0 where a value is missing, else 0.0.
-
-        Counts and sums over "the rows where column j is present" are the totals
-        over all rows less what the incomplete rows hold; delivered files miss a
-        few values, so these products run over a small share of the rows.
-        """
-        return (~self.valid[self.incomplete]).astype(np.float64)
 
     def column_totals(self, values: np.ndarray) -> np.ndarray:
         """Column sums of a (rows × columns) array, as a product with ones: six times
@@ -99,16 +90,22 @@ class ShiftedBatch:
         x = np.empty((rows, len(names)))
         for j, name in enumerate(names):
             x[:, j] = numbers[name]
-        valid = ~np.isnan(x)
-        missing = ~valid
-        x[missing] = 0.0
-        # Column sums as a product with ones (see ``column_totals``); the shift need
-        # not be exact (any shift keeps the co-moments exact; it only keeps their
-        # sums small).
-        shift = (np.ones(rows) @ x) / np.maximum(rows - np.count_nonzero(missing, axis=0), 1)
+        # A row's total is NaN where one of its values is (or inf on overflow, which
+        # only adds a complete row to the incomplete ones, harmlessly): one product
+        # finds the incomplete rows, and the masks are built over those alone.
+        incomplete = np.flatnonzero(~np.isfinite(x @ np.ones(len(names))))
+        gaps = np.isnan(x[incomplete])
+        part = x[incomplete]
+        part[gaps] = 0.0
+        x[incomplete] = part
+        # The shift need not be exact (any shift keeps the co-moments exact; it only
+        # keeps their sums small).
+        shift = (np.ones(rows) @ x) / np.maximum(rows - gaps.sum(axis=0), 1)
         x -= shift
-        x[missing] = 0.0
-        return cls(list(names), valid, x, shift)
+        part = x[incomplete]
+        part[gaps] = 0.0
+        x[incomplete] = part
+        return cls(list(names), x, shift, incomplete, gaps.astype(np.float64))
 
 
 class CoMoments:
