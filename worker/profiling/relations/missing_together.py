@@ -31,11 +31,17 @@ class MissingTogether:
     def update(self, missing: Mapping[str, np.ndarray]) -> None:
         if not self.columns:
             return
-        masks = np.column_stack([np.asarray(missing[name]) for name in self.columns])
-        self.rows += masks.shape[0]
-        if masks.any():
+        masks = [np.asarray(missing[name]) for name in self.columns]
+        self.rows += len(masks[0])
+        # Only the rows missing something add to a count: the product runs over those.
+        gapped = masks[0].copy()
+        for mask in masks[1:]:
+            gapped |= mask
+        rows = np.flatnonzero(gapped)
+        if rows.size:
             # float32 sums of ones are exact below 2**24 rows; larger batches take float64.
-            m = masks.astype(np.float32 if masks.shape[0] < 2**24 else np.float64)
+            width = np.float32 if rows.size < 2**24 else np.float64
+            m = np.column_stack([mask[rows] for mask in masks]).astype(width)
             self.both += np.rint(m.T @ m).astype(np.int64)
 
     def merge(self, other: MissingTogether) -> MissingTogether:
