@@ -256,13 +256,20 @@ class TableProfiler:
         """The profile document without its ``source`` section and judgement.
 
         With more than one thread, the duplicate rows (a sort of every row hash,
-        which frees the GIL) are counted beside the column and pair figures.
+        which frees the GIL) are counted beside the column figures, and the
+        columns (sorts and quantiles of their kept values) are summarised side by
+        side; the pair figures follow, as they need the columns' kinds.
         """
         self.wait()
-        side = ThreadPoolExecutor(max_workers=1) if self.options.threads > 1 else None
+        threads = self.options.threads
+        side = ThreadPoolExecutor(max_workers=threads) if threads > 1 else None
         pending = side.submit(self.duplicates.finalize) if side is not None else None
         try:
-            columns = [state.finalize() for state in self.columns.values()]
+            states = list(self.columns.values())
+            if side is not None:
+                columns = list(side.map(ColumnState.finalize, states))
+            else:
+                columns = [state.finalize() for state in states]
             kinds = {column["name"]: column["kind"] for column in columns}
             relations: dict[str, Any] = {
                 "pairs": [],
