@@ -11,7 +11,13 @@ from typing import Any
 
 import numpy as np
 
-from worker.profiling.relations.crosstab import chi_square_p_value
+from worker.profiling.relations.crosstab import (
+    adjusted_residuals,
+    chi_square_p_value,
+    chi_square_statistic,
+    cochran_ok,
+    expected_counts,
+)
 
 
 @dataclass(frozen=True)
@@ -25,10 +31,9 @@ class ContingencyTable:
     @property
     def expected(self) -> np.ndarray:
         """Counts expected if the two columns were independent: row total × column total / n."""
-        total = self.counts.sum()
-        if total == 0:
+        if self.counts.sum() == 0:
             return np.zeros_like(self.counts, dtype=float)
-        return np.outer(self.counts.sum(axis=1), self.counts.sum(axis=0)) / total
+        return expected_counts(self.counts)
 
     def cochran_ok(self, min_expected: float = 5.0, low_share: float = 0.2) -> bool:
         """Cochran's rule: no expected count below 1, at most ``low_share`` below ``min_expected``.
@@ -38,7 +43,7 @@ class ContingencyTable:
         expected = self.expected
         if expected.size == 0 or min(expected.shape) < 2:
             return False
-        return bool(expected.min() >= 1 and (expected < min_expected).mean() <= low_share)
+        return cochran_ok(expected, min_expected, low_share)
 
     def adjusted_residuals(self) -> np.ndarray:
         """(O - E) / sqrt(E · (1 - row share) · (1 - column share)) per cell.
@@ -49,15 +54,7 @@ class ContingencyTable:
         References: Haberman (1973), The analysis of residuals in cross-classified
         tables, Biometrics 29:205-220; Agresti (2002), Categorical Data Analysis, 2.4.5.
         """
-        counts = self.counts.astype(float)
-        total = counts.sum()
-        expected = self.expected
-        row_share = counts.sum(axis=1, keepdims=True) / total
-        column_share = counts.sum(axis=0, keepdims=True) / total
-        scale = np.sqrt(expected * (1 - row_share) * (1 - column_share))
-        with np.errstate(divide="ignore", invalid="ignore"):
-            residuals = np.where(scale > 0, (counts - expected) / scale, 0.0)
-        return residuals
+        return adjusted_residuals(self.counts)
 
     def extreme_cells(self, threshold: float) -> list[dict[str, Any]]:
         """Cells whose |adjusted residual| exceeds ``threshold``, largest first."""
@@ -130,7 +127,6 @@ def chi_square(counts: np.ndarray) -> ChiSquare:
     counts = counts[counts.sum(axis=1) > 0][:, counts.sum(axis=0) > 0]
     if counts.ndim != 2 or min(counts.shape, default=0) < 2:
         return ChiSquare(0.0, 0, 1.0)
-    expected = ContingencyTable([], [], counts).expected
-    statistic = float(((counts - expected) ** 2 / expected).sum())
+    statistic = chi_square_statistic(counts, expected_counts(counts), yates=False)
     dof = (counts.shape[0] - 1) * (counts.shape[1] - 1)
     return ChiSquare(statistic, dof, chi_square_p_value(statistic, dof))

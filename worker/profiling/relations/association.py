@@ -22,6 +22,7 @@ import pyarrow.compute as pc
 from scipy import sparse
 
 from worker.profiling.relations.comoments import ShiftedBatch
+from worker.profiling.relations.crosstab import chi_square_statistic, expected_counts
 
 
 class LabelIndex:
@@ -280,7 +281,5 @@ def cramers_v(table: np.ndarray) -> float | None:
     table = table[table.sum(axis=1) > 0][:, table.sum(axis=0) > 0]
     if min(table.shape) < 2:
         return None
-    n = table.sum()
-    expected = np.outer(table.sum(axis=1), table.sum(axis=0)) / n
-    chi2 = float(((table - expected) ** 2 / expected).sum())
-    return float(np.sqrt(chi2 / (n * (min(table.shape) - 1))))
+    chi2 = chi_square_statistic(table, expected_counts(table), yates=False)
+    return float(np.sqrt(chi2 / (table.sum() * (min(table.shape) - 1))))
