@@ -126,6 +126,10 @@ class ColumnState:
         self.kinds.update(present_count, numbers, text)
         if present_count == 0:
             return
+        # Dates repeat: their distinct values are parsed and counted once (see encode).
+        encoded = None
+        if self.dates is not None and text is not None:
+            encoded = prepared.encoded or self.dates.encode(text)
         if self.numeric is not None and numbers is not None:
             self.numeric.update(numbers)
         labels = self.labels
@@ -148,10 +152,14 @@ class ColumnState:
                 self.distinct.update(pa.array(overflow, type=pa.string()))
             if not was_exact or overflow is not None:
                 self._hash(raw, text, numbers)
+        elif encoded is not None and (numbers is None or self.candidates.number_share <= 0.5):
+            # The distinct values of the batch are its dictionary (a sketch of them
+            # is the sketch of every row: repeats do not change it).
+            self._hash(raw, encoded.dictionary, None)
         else:
             self._hash(raw, text, numbers)
         if self.dates is not None:
-            self.dates.update(text if text is not None else raw)
+            self.dates.update(text if text is not None else raw, encoded)
         if self.text is not None:
             self.text.update(raw, missing, prepared.padded)
 

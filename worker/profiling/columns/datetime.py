@@ -18,6 +18,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from worker.profiling.columns.quantiles import QuantileState
+from worker.profiling.prepared import is_text_type, null_mask
 
 # (format, "day" or "month" first when the form is ambiguous, else None)
 DATE_FORMATS: tuple[tuple[str, str | None], ...] = (
@@ -111,6 +112,30 @@ class _FormatState:
         if self.finest < 5:
             self.finest = max(self.finest, _finest_grain(seconds, present, self.finest))
 
+    def update_labels(self, parsed: pa.Array, codes: np.ndarray, now: float) -> None:
+        """Add a batch given as its distinct values parsed (``parsed``, null where a value
+        does not fit) and each row's code into them (``len(parsed)`` where missing).
+
+        The same figures as ``update`` over the rows: the granularity depends only on
+        which values occur, every distinct value occurring at least once.
+        """
+        fits = parsed.drop_null() if parsed.null_count else parsed
+        if len(fits) == 0:
+            return
+        label_seconds = np.full(len(parsed) + 1, np.nan)
+        fitting = ~null_mask(parsed)
+        label_seconds[: len(parsed)][fitting] = pc.cast(fits, pa.int64()).to_numpy(
+            zero_copy_only=False
+        )
+        rows = label_seconds[codes]
+        seconds = rows[~np.isnan(rows)]
+        self.parsed += int(seconds.size)
+        self.future += int(np.count_nonzero(seconds > now))
+        self.seconds.update(seconds)
+        if self.finest < 5:
+            distinct = label_seconds[: len(parsed)][fitting].astype(np.int64)
+            self.finest = max(self.finest, _finest_grain(distinct, fits, self.finest))
+
     def merge(self, other: _FormatState) -> _FormatState:
         out = _FormatState(self.seconds.exact_bound, self.seconds.sample_size)
         out.parsed = self.parsed + other.parsed
@@ -159,9 +184,35 @@ class DatetimeState:
         self.now = now
         self.states = {fmt: _FormatState(exact_bound, sample_size) for fmt in self.formats}
         self.examples: dict[str, list[str]] = {fmt: [] for fmt in self.formats}
+        self._by_label = True  # parse distinct values once (see ``encode``)
 
-    def update(self, values: pa.Array) -> None:
-        """Add a batch: trimmed text (null where missing), or typed timestamps/dates."""
+    def encode(self, text: pa.Array) -> pa.DictionaryArray | None:
+        """The batch's text dictionary-encoded when its dates repeat (as days do), else None.
+
+        Parsing the distinct values once and spreading them by code costs a fraction
+        of parsing every row; values that hardly repeat (timestamps to the second)
+        are parsed row by row, as the first batch that shows it decides.
+        """
+        if not self._by_label or TYPED in self.states or not is_text_type(text.type):
+            return None
+        encoded = pc.dictionary_encode(text)
+        if len(encoded.dictionary) > len(text) // 2:
+            self._by_label = False
+        return encoded
+
+    def update(self, values: pa.Array, encoded: pa.DictionaryArray | None = None) -> None:
+        """Add a batch: trimmed text (null where missing), or typed timestamps/dates.
+
+        ``encoded``, when given, is the same text dictionary-encoded (``encode``).
+        """
+        if encoded is not None:
+            dictionary = encoded.dictionary
+            codes = encoded.indices.fill_null(len(dictionary)).to_numpy(zero_copy_only=False)
+            for fmt, state in self.states.items():
+                parsed = parse_dates(dictionary, fmt)
+                self._keep_examples(fmt, dictionary, parsed)
+                state.update_labels(parsed, codes, self.now)
+            return
         for fmt, state in self.states.items():
             if fmt == TYPED:
                 parsed = pc.cast(pc.cast(values, pa.timestamp("s")), pa.timestamp("s"))

@@ -71,3 +71,49 @@ def test_iso_dates_read_as_strptime_reads_them(values):
     # And Python's own datetime.strptime for the plain dates.
     parsed = parse_dates(text, "%Y-%m-%d").to_pylist()
     assert parsed[0] == dt.datetime.strptime("2025-03-01", "%Y-%m-%d")
+
+
+def _by_label_and_by_row(values, chunks=3):
+    """The finalized figures of one column profiled through its distinct values and row by row."""
+    array = pa.array(values)
+    formats = candidate_formats(array.drop_null())
+    by_label, by_row = DatetimeState(formats, now=NOW), DatetimeState(formats, now=NOW)
+    step = max(1, len(values) // chunks)
+    encoded_batches = batches = 0
+    for start in range(0, len(values), step):
+        batches += 1
+        batch = array.slice(start, step)
+        encoded = by_label.encode(batch)
+        encoded_batches += encoded is not None
+        by_label.update(batch, encoded)
+        by_row.update(batch)
+    return by_label.finalize(), by_row.finalize(), (encoded_batches, batches)
+
+
+@pytest.mark.parametrize(
+    "values",
+    [
+        ["2025-03-01", "2025-03-02", None, "2025-03-01", "2027-01-01"] * 40,  # repeats, a gap
+        ["03/04/2025", "05/06/2025", "x", "03/04/2025", "25/12/2025"] * 30,  # day-first, a word
+        ["03/04/2025", "05/06/2025", "11/12/2025"] * 30,  # ambiguous
+        ["2025-01-01", "2025-03-01", "2025-07-01"] * 30,  # month granularity
+        ["2025-01-01T10:00:00", "2025-06-01T11:30:00", "-"] * 30,  # minute granularity
+    ],
+)
+def test_dates_read_through_their_distinct_values_equal_dates_read_row_by_row(values):
+    by_label, by_row, (encoded, batches) = _by_label_and_by_row(values)
+    assert encoded == batches  # by construction the values repeat in every batch
+    assert by_label == by_row
+
+
+def test_dates_that_hardly_repeat_are_read_row_by_row_after_the_first_batch():
+    seconds = [
+        f"2025-01-01T{h:02d}:{m:02d}:{s:02d}"
+        for h in range(3)
+        for m in range(60)
+        for s in range(0, 60, 7)
+    ]
+    by_label, by_row, (encoded, batches) = _by_label_and_by_row(seconds)
+    assert (encoded, batches) == (1, 3)
+    assert by_label == by_row
+    assert by_row["granularity"] == "second"
