@@ -84,6 +84,14 @@ def is_text_type(data_type: pa.DataType) -> bool:
     )
 
 
+def as_string_view(array: pa.Array) -> pa.Array:
+    """Text as Arrow string views, the layout polars keeps text in, so polars takes it
+    without converting every value (other types as they are)."""
+    if pat.is_string(array.type) or pat.is_large_string(array.type):
+        return array.cast(pa.string_view())
+    return array
+
+
 def to_numpy_bool(mask: pa.Array | pa.ChunkedArray) -> np.ndarray:
     """An Arrow boolean array as numpy, nulls read as False."""
     if isinstance(mask, pa.ChunkedArray):

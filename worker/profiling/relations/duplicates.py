@@ -26,6 +26,7 @@ import polars as pl
 import pyarrow as pa
 
 from worker.profiling.hyperloglog import HyperLogLog
+from worker.profiling.prepared import as_string_view
 
 if TYPE_CHECKING:
     from worker.profiling.options import ProfileOptions
@@ -38,8 +39,11 @@ def row_hashes(raw: pa.RecordBatch) -> np.ndarray:
     """One 64-bit hash per row of the raw batch."""
     if raw.num_columns == 0:
         return np.zeros(raw.num_rows, dtype=np.uint64)
-    # As a one-batch table without rechunking: a fifth cheaper than from a batch.
-    frame = pl.from_arrow(pa.Table.from_batches([raw]), rechunk=False)
+    # Text as Arrow string views, which polars takes without converting (5.6 -> 4.7 ms
+    # for a 53,000-row batch of 12 text columns, same hashes), in a one-batch table
+    # without rechunking (a fifth cheaper than from a batch).
+    columns = [as_string_view(column) for column in raw.columns]
+    frame = pl.from_arrow(pa.Table.from_arrays(columns, names=raw.schema.names), rechunk=False)
     assert isinstance(frame, pl.DataFrame)
     return frame.hash_rows(seed=HASH_SEED).to_numpy()
 
