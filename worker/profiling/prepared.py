@@ -122,7 +122,7 @@ def parse_numbers(
     except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
         import polars as pl
 
-        parsed = pl.from_arrow(text).cast(pl.Float64, strict=False).to_arrow()
+        parsed = pl.from_arrow(as_string_view(text)).cast(pl.Float64, strict=False).to_arrow()
     values = np.asarray(parsed.to_numpy(zero_copy_only=False), dtype=np.float64)
     values = np.where(np.isfinite(values), values, np.nan)
     return values
