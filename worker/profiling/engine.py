@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import copy
 import hashlib
+import importlib
 import os
 import queue
 import threading
@@ -256,14 +257,21 @@ class TableProfiler:
         """The profile document without its ``source`` section and judgement.
 
         With more than one thread, the duplicate rows (a sort of every row hash,
-        which frees the GIL) are counted beside the column figures, and the
-        columns (sorts and quantiles of their kept values) are summarised side by
-        side; the pair figures follow, as they need the columns' kinds.
+        which frees the GIL) and Spearman's ranks are computed beside the column
+        figures, and the columns (sorts and quantiles of their kept values) are
+        summarised side by side; the other pair figures follow, as they need the
+        columns' kinds.
         """
         self.wait()
         threads = self.options.threads
         side = ThreadPoolExecutor(max_workers=threads) if threads > 1 else None
         pending = side.submit(self.duplicates.finalize) if side is not None else None
+        # Spearman's ranks (sorts of the row sample) need no kinds: they run beside the
+        # columns too, as does loading scipy.special for the chi-square p-values.
+        ranks = None
+        if side is not None and self.relations is not None:
+            ranks = side.submit(self.relations.spearman)
+            side.submit(importlib.import_module, "scipy.special")
         try:
             states = list(self.columns.values())
             if side is not None:
@@ -278,7 +286,8 @@ class TableProfiler:
                 "missing_together": [],
             }
             if self.relations is not None:
-                relations = self.relations.finalize(kinds)
+                spearman = ranks.result() if ranks is not None else None
+                relations = self.relations.finalize(kinds, spearman)
             duplicates = pending.result() if pending is not None else self.duplicates.finalize()
         finally:
             if side is not None:

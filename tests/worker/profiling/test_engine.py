@@ -307,3 +307,30 @@ def test_profiling_does_not_load_scipy_stats(tmp_path) -> None:
         [sys.executable, "-c", script, str(path)], capture_output=True, text=True, check=True
     )
     assert run.stdout.strip() == "False"
+
+
+def test_one_thread_and_several_give_the_same_profile(tmp_path):
+    # With threads, Spearman's ranks run beside the column summaries over every numeric
+    # candidate; "mostly_words" starts as one (numbers first) and ends as text, so its
+    # pairs must be left out as they are on one thread (truth by construction).
+    rng = np.random.default_rng(11)
+    rows = 12_000
+    frame = pd.DataFrame(
+        {
+            "depth_m": rng.normal(20, 4, rows).round(2),
+            "temp_c": rng.normal(12, 2, rows).round(1),
+            "mostly_words": [str(v) for v in range(3000)] + ["calm"] * (rows - 3000),
+            "gauge": rng.choice(["north", "south", "east"], rows),
+        }
+    )
+    frame.loc[rng.choice(rows, 150, replace=False), "temp_c"] = np.nan
+    path = tmp_path / "soundings.csv"
+    frame.to_csv(path, index=False)
+    small_batches = {"csv_block_bytes": 64 * 1024}  # the first batches hold numbers only
+    one = profile_file(path, ProfileOptions(threads=1, **small_batches), sha256="-")
+    several = profile_file(path, ProfileOptions(threads=2, **small_batches), sha256="-")
+    assert _by_name(one)["mostly_words"]["kind"] != "numeric"
+    spearman = [p for p in several["pairs"] if p["method"] == "spearman"]
+    assert [(p["a"], p["b"]) for p in spearman] == [("depth_m", "temp_c")]
+    for key in ("dataset", "columns", "pairs", "twins", "crosstabs", "flags", "score"):
+        assert json.dumps(one[key], sort_keys=True) == json.dumps(several[key], sort_keys=True)

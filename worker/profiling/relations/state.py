@@ -95,8 +95,15 @@ class RelationsState:
             merged.missing = self.missing.merge(other.missing)
         return merged
 
-    def finalize(self, kinds: dict[str, str]) -> dict[str, Any]:
-        """The profile's "pairs", "twins", "crosstabs" and "missing_together"."""
+    def finalize(
+        self, kinds: dict[str, str], spearman: list[dict[str, Any]] | None = None
+    ) -> dict[str, Any]:
+        """The profile's "pairs", "twins", "crosstabs" and "missing_together".
+
+        ``spearman``, when given, is ``self.spearman()`` computed beforehand (it
+        needs no kinds, so it can run beside the column summaries); the pairs of
+        columns whose kind is not numeric are left out here either way.
+        """
         relations, thresholds = self.options.relations, self.options.thresholds
         numeric = [name for name in self.numeric if kinds.get(name) in NUMERIC_KINDS]
         labels = [
@@ -117,7 +124,9 @@ class RelationsState:
             )
             if found is not None:
                 twins.append(found)
-        pairs.extend(self._spearman(numeric))
+        if spearman is None:
+            spearman = self.spearman(numeric)
+        pairs.extend(doc for doc in spearman if doc["a"] in numeric and doc["b"] in numeric)
         crosstabs = []
         for (a, b), table in self.pair_counts.counts.items():
             if a not in labels or b not in labels:
@@ -161,13 +170,15 @@ class RelationsState:
             "missing_together": self.missing.finalize(min_phi) if self.missing else [],
         }
 
-    def _spearman(self, numeric: list[str]) -> list[dict[str, Any]]:
-        """Spearman's rho on the row sample (every row while the table fits in it).
+    def spearman(self, numeric: list[str] | None = None) -> list[dict[str, Any]]:
+        """Spearman's rho of every pair of ``numeric`` (by default every numeric candidate)
+        on the row sample (every row while the table fits in it).
 
         Each column is sorted once; a pair's ranks over its complete rows are
         then read off that order in linear time (ties get their average rank,
         as scipy.stats.rankdata gives).
         """
+        numeric = self.numeric if numeric is None else numeric
         sample = self.sample
         exact = sample.exact
         values = {name: sample.column(name) for name in numeric}
