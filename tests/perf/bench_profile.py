@@ -10,6 +10,8 @@ time and peak resident memory belong to that run alone:
 - reader: Tidewaiter's own reader alone (``open_table`` and every batch), to
   tell reading from profiling;
 - profile: ``tidewaiter profile FILE --quiet --json /dev/null``;
+- floor 1t and profile 1t: the floor without Arrow's threads and the profile
+  with one profiling thread, to show how much each gains from the second core;
 - pandas: the routine a person would write in a notebook (read_csv,
   describe(include="all"), quantile, value_counts per text column, corr,
   isna().sum(), duplicated().sum()).
@@ -47,7 +49,8 @@ FLOOR = textwrap.dedent(
     """
     import sys
     import pyarrow.csv as pacsv
-    table = pacsv.read_csv(sys.argv[1])
+    threads = sys.argv[2] == "threads"
+    table = pacsv.read_csv(sys.argv[1], read_options=pacsv.ReadOptions(use_threads=threads))
     print(table.num_rows)
     """
 )
@@ -89,11 +92,13 @@ class Run:
     exit_code: int
 
 
-def measure(name: str, rows: int, command: list[str]) -> Run:
+def measure(name: str, rows: int, command: list[str], env: dict[str, str] | None = None) -> Run:
     """Run ``command`` in its own process; wall time, CPU time (user + system, every
     thread) and that process's own peak RSS."""
     start = time.perf_counter()
-    process = subprocess.Popen(command, stdout=subprocess.DEVNULL)
+    process = subprocess.Popen(
+        command, stdout=subprocess.DEVNULL, env={**os.environ, **(env or {})}
+    )
     _, status, usage = os.wait4(process.pid, 0)
     seconds = time.perf_counter() - start
     process.returncode = os.waitstatus_to_exitcode(status)
@@ -108,12 +113,17 @@ def measure(name: str, rows: int, command: list[str]) -> Run:
         process.returncode,
     )
     print(
-        f"  {name:<8} {rows:>11,} rows  {run.seconds:8.2f} s  {run.peak_rss_mb:8.0f} MB"
+        f"  {name:<10} {rows:>11,} rows  {run.seconds:8.2f} s  {run.peak_rss_mb:8.0f} MB"
         f"  cpu {run.cpu_seconds:7.2f} s ({cpu / max(seconds, 1e-9):.2f} cores)"
         + ("" if run.exit_code == 0 else f"  (exit code {run.exit_code})"),
         flush=True,
     )
     return run
+
+
+def figure(label: str, value: float) -> None:
+    """Print one figure that has no target."""
+    print(f"  {label:<34} {value:8.2f}")
 
 
 def ratio(label: str, value: float, target: str, bound: float, *, below: bool = False) -> None:
@@ -145,12 +155,31 @@ def main() -> int:
         # The floor's first run in a process can be several times slower than the
         # next (the kernel faulting in its 3 GB); its fastest of three is the honest floor.
         "floor": min(
-            (measure("floor", args.rows, [PYTHON, "-c", FLOOR, str(big)]) for _ in range(3)),
+            (
+                measure("floor", args.rows, [PYTHON, "-c", FLOOR, str(big), "threads"])
+                for _ in range(3)
+            ),
             key=lambda run: run.seconds,
         ),
         "reader": measure("reader", args.rows, [PYTHON, "-c", READ_ONLY, str(big)]),
         "profile": measure("profile", args.rows, [*profile_cmd, str(big)]),
         "profile_small": measure("profile", args.small_rows, [*profile_cmd, str(small)]),
+        # How much each gains from the second core: Arrow's parser without its
+        # threads (fastest of three, as above), and the profile with one profiling
+        # thread (its reader has one anyway).
+        "floor_one": min(
+            (
+                measure("floor 1t", args.rows, [PYTHON, "-c", FLOOR, str(big), "one"])
+                for _ in range(3)
+            ),
+            key=lambda run: run.seconds,
+        ),
+        "profile_one": measure(
+            "profile 1t",
+            args.rows,
+            [*profile_cmd, str(big)],
+            env={"TIDEWAITER_PROFILING__THREADS": "1"},
+        ),
     }
     if not args.skip_pandas:
         runs["pandas"] = measure("pandas", args.rows, [PYTHON, "-c", NAIVE_PANDAS, str(big)])
@@ -158,9 +187,13 @@ def main() -> int:
     floor, profile, small_profile = runs["floor"], runs["profile"], runs["profile_small"]
     print("ratios:")
     ratio("profile / floor time", profile.seconds / floor.seconds, "<= 2.5", 2.5, below=True)
-    print(f"  {'reader alone / floor time':<34} {runs['reader'].seconds / floor.seconds:8.2f}")
+    figure("reader alone / floor time", runs["reader"].seconds / floor.seconds)
     # The work done, whatever the cores the machine lent: CPU seconds side by side.
-    print(f"  {'profile / floor CPU time':<34} {profile.cpu_seconds / floor.cpu_seconds:8.2f}")
+    figure("profile / floor CPU time", profile.cpu_seconds / floor.cpu_seconds)
+    one_floor, one_profile = runs["floor_one"], runs["profile_one"]
+    figure("profile / floor, one thread each", one_profile.seconds / one_floor.seconds)
+    figure("floor: one thread / threads", one_floor.seconds / floor.seconds)
+    figure("profile: one thread / threads", one_profile.seconds / profile.seconds)
     if "pandas" in runs:
         ratio("pandas / profile time", runs["pandas"].seconds / profile.seconds, ">= 6", 6)
     ratio("profile peak RSS (MB)", profile.peak_rss_mb, "<= 1024", 1024, below=True)
