@@ -81,5 +81,6 @@ class _ThenTellPyarrow(importlib.abc.Loader):
         import pyarrow as pa
 
         # Reading the shim's ``pd`` makes pyarrow import pandas (found in sys.modules
-        # now) and keep it, as it would have at its first probe.
-        pa.lib._pandas_api.pd  # noqa: B018
+        # now) and keep it, as it would have at its first probe. The shim is private:
+        # should a later pyarrow lack it, pandas imports all the same.
+        getattr(getattr(pa.lib, "_pandas_api", None), "pd", None)
