@@ -14,10 +14,9 @@ imported pandas already is left as it is.
 from __future__ import annotations
 
 import importlib.abc
-import importlib.machinery
 import sys
 from collections.abc import Sequence
-from importlib.machinery import ModuleSpec
+from importlib.machinery import ModuleSpec, PathFinder
 from types import ModuleType
 
 
@@ -55,7 +54,7 @@ class _PandasWatch(importlib.abc.MetaPathFinder):
     ) -> ModuleSpec | None:
         if fullname != "pandas" or "pandas" in sys.modules:
             return None
-        spec = importlib.machinery.PathFinder.find_spec(fullname, path)
+        spec = PathFinder.find_spec(fullname, path)
         if spec is not None and isinstance(spec.loader, importlib.abc.Loader):
             spec.loader = _ThenTellPyarrow(spec.loader, self)
         return spec
