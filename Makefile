@@ -11,7 +11,8 @@ $(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
 	$(BIN)/pip install --quiet --upgrade pip
 
-$(STAMP): pyproject.toml | $(BIN)/python
+# The engine's C passes are compiled by this install, so a change to them reinstalls.
+$(STAMP): pyproject.toml $(wildcard worker/profiling/native/*.[ch]) | $(BIN)/python
 	$(BIN)/pip install --quiet -e '.[test]'
 	touch $(STAMP)
 
@@ -35,4 +36,5 @@ bench: $(STAMP)
 	$(BIN)/python tests/perf/bench_profile.py
 
 clean:
-	rm -rf $(VENV) var .pytest_cache .ruff_cache
+	rm -rf $(VENV) var .pytest_cache .ruff_cache build
+	rm -f worker/profiling/native/*.so

@@ -1,8 +1,10 @@
 """Cramér's V for label pairs and the correlation ratio eta for numeric–label pairs.
 
 Both come from exact, mergeable counts. Each batch dictionary-encodes every
-label column (Arrow), maps the batch's dictionary to a growing global label
-index, and counts pairs of codes with one ``np.bincount`` per pair. A column
+label column (Arrow) and maps the batch's dictionary to a growing global label
+index; one compiled pass over the codes and the numbers
+(``worker.profiling.native.relation_sums``) then counts every pair of codes and
+sums every numeric column per label. A column
 that shows more labels than ``label_bound`` is dropped from counting: V and eta
 over hundreds of labels mean little and cost much.
 
@@ -19,9 +21,8 @@ from collections.abc import Mapping
 import numpy as np
 import pyarrow as pa
 import pyarrow.compute as pc
-from scipy import sparse
 
-from worker.profiling.relations.comoments import ShiftedBatch
+from worker.profiling.native import RelationSums
 from worker.profiling.relations.crosstab import chi_square_statistic, expected_counts
 
 
@@ -108,17 +109,13 @@ class PairCounts:
         self.columns = list(columns)
         self.counts: dict[tuple[str, str], np.ndarray] = {}
 
-    def update(self, codes: Mapping[str, np.ndarray], sizes: Mapping[str, int]) -> None:
-        names = [name for name in self.columns if name in codes]
-        for i, a in enumerate(names):
-            for b in names[i + 1 :]:
-                ca, cb = codes[a], codes[b]
-                both = (ca >= 0) & (cb >= 0)
-                la, lb = sizes[a], sizes[b]
-                table = np.bincount(ca[both] * lb + cb[both], minlength=la * lb)
-                table = table.reshape(la, lb)
-                previous = self.counts.get((a, b), np.zeros((0, 0), dtype=np.int64))
-                self.counts[(a, b)] = _grow(previous, la, lb) + table
+    def add(self, sums: RelationSums, names: list[str], sizes: Mapping[str, int]) -> None:
+        """Add one batch's tables: ``sums.tables`` holds one per pair of ``names``
+        (the label columns counted in this batch, in this state's order)."""
+        pairs = [(a, b) for i, a in enumerate(names) for b in names[i + 1 :]]
+        for (a, b), table in zip(pairs, sums.tables, strict=True):
+            previous = self.counts.get((a, b), np.zeros((0, 0), dtype=np.int64))
+            self.counts[(a, b)] = _grow(previous, sizes[a], sizes[b]) + table
 
     def merge(
         self, other: PairCounts, remap: Mapping[str, np.ndarray], sizes: Mapping[str, int]
@@ -154,38 +151,21 @@ class GroupMoments:
         self.numeric = list(numeric)
         self.stats: dict[str, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
 
-    def update(
-        self,
-        values: ShiftedBatch,
-        codes: Mapping[str, np.ndarray],
-        sizes: Mapping[str, int],
-    ) -> None:
-        """Add one batch: sparse products give every numeric column's per-label count,
-        sum and sum of squares (of values shifted by the batch's column means, so the
-        squares do not swamp the spread).
-
-        The label columns are stacked into one indicator matrix (one row per label
-        of every column), so the numbers are read once for all of them. The counts
-        are each label's rows less its incomplete rows' gaps (``ShiftedBatch.gaps``).
-        """
-        if not values.names or not codes:
+    def add(self, sums: RelationSums, names: list[str], sizes: Mapping[str, int]) -> None:
+        """Add one batch's per-label sums: ``sums.group_*`` hold the labels of every
+        column of ``names`` one after another (values shifted by ``sums.shift``, so the
+        squares do not swamp the spread)."""
+        if not self.numeric or not names:
             return
-        names = list(codes)
-        table = np.column_stack([codes[name] for name in names])
-        bases = np.concatenate([[0], np.cumsum([sizes[name] for name in names])])
-        labels = int(bases[-1])
-        onehot = _indicator(table, bases[:-1], labels)
-        total = np.asarray(onehot @ values.z)[:labels]
-        squares = np.asarray(onehot @ values.squares)[:labels]
-        per_label = np.bincount(onehot.indices, minlength=labels + 1)[:labels]
-        gaps = np.asarray(_indicator(table[values.incomplete], bases[:-1], labels) @ values.gaps)
-        n = per_label[:, None] - gaps[:labels]
+        n = sums.group_counts
         with np.errstate(invalid="ignore", divide="ignore"):
-            inner = np.where(n > 0, total / n, 0.0)
-        m2 = np.maximum(squares - total * inner, 0.0)
-        mean = np.where(n > 0, inner + values.shift, 0.0)
-        for k, label_name in enumerate(names):
-            block = slice(int(bases[k]), int(bases[k + 1]))
+            inner = np.where(n > 0, sums.group_sums / n, 0.0)
+        m2 = np.maximum(sums.group_squares - sums.group_sums * inner, 0.0)
+        mean = np.where(n > 0, inner + sums.shift, 0.0)
+        start = 0
+        for label_name in names:
+            block = slice(start, start + sizes[label_name])
+            start = block.stop
             self._absorb(label_name, (n[block], mean[block], m2[block]), sizes[label_name])
 
     def _absorb(self, label_name: str, batch, size: int, remap: np.ndarray | None = None):
@@ -225,22 +205,6 @@ class GroupMoments:
         for label_name, (n, mean, m2) in self.stats.items():
             for j, num_name in enumerate(self.numeric):
                 yield (num_name, label_name), (n[:, j], mean[:, j], m2[:, j])
-
-
-def _indicator(table: np.ndarray, bases: np.ndarray, labels: int) -> sparse.csc_matrix:
-    """(labels + 1) × rows matrix with a 1 where a row has a label.
-
-    ``table`` holds each row's code in every label column (-1 where missing),
-    ``bases`` where each column's labels start. A missing label is put in the
-    extra last row, which the caller drops: every row then has one entry per
-    column, and the matrix is built in CSC form as is, with no masking (measured
-    five times cheaper than leaving the missing labels out).
-    """
-    indices = np.where(table >= 0, table + bases, labels).astype(np.int32).ravel()
-    indptr = np.arange(0, indices.size + 1, max(table.shape[1], 1), dtype=np.int32)
-    return sparse.csc_matrix(
-        (np.ones(indices.size), indices, indptr), shape=(labels + 1, table.shape[0])
-    )
 
 
 def _pad(values: np.ndarray, size: int) -> np.ndarray:

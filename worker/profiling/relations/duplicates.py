@@ -1,13 +1,14 @@
 """Duplicate rows, found by a 64-bit hash of each row's raw cells.
 
-Each batch is hashed in one vectorised call (polars ``hash_rows`` over the raw
-cell texts, so "1" and "1.0" are different rows, and a missing cell equals a
-missing cell). While the table has at most ``duplicate_exact_rows`` rows every
-hash is kept and the count of repeated rows is exact (up to a hash collision,
-about n²/2⁶⁵: one in 300,000 for 10 million rows); the first groups of equal
-rows are given as examples. Above the bound the hashes feed a HyperLogLog
-register array instead and the count is an estimate (``exact`` False) with a
-relative standard error of 1.04/√m on the number of distinct rows.
+Each batch is hashed in one compiled pass over the raw cells
+(``worker.profiling.native.row_hashes``: "1" and "1.0" are different rows, and a
+missing cell equals a missing cell). While the table has at most
+``duplicate_exact_rows`` rows every hash is kept and the count of repeated rows
+is exact (up to a hash collision, about n²/2⁶⁵: one in 300,000 for 10 million
+rows); the first groups of equal rows are given as examples. Above the bound
+the hashes feed a HyperLogLog register array instead and the count is an
+estimate (``exact`` False) with a relative standard error of 1.04/√m on the
+number of distinct rows.
 
 Repeated rows are counted as pandas ``DataFrame.duplicated().sum()`` counts
 them: every row equal to an earlier one.
@@ -25,8 +26,8 @@ import numpy as np
 import polars as pl
 import pyarrow as pa
 
+from worker.profiling import native
 from worker.profiling.hyperloglog import HyperLogLog
-from worker.profiling.prepared import as_string_view
 
 if TYPE_CHECKING:
     from worker.profiling.options import ProfileOptions
@@ -37,15 +38,7 @@ _SLICE_BITS = 4  # the exact count sorts the hashes in 2**4 slices, one at a tim
 
 def row_hashes(raw: pa.RecordBatch) -> np.ndarray:
     """One 64-bit hash per row of the raw batch."""
-    if raw.num_columns == 0:
-        return np.zeros(raw.num_rows, dtype=np.uint64)
-    # Text as Arrow string views, which polars takes without converting (5.6 -> 4.7 ms
-    # for a 53,000-row batch of 12 text columns, same hashes), in a one-batch table
-    # without rechunking (a fifth cheaper than from a batch).
-    columns = [as_string_view(column) for column in raw.columns]
-    frame = pl.from_arrow(pa.Table.from_arrays(columns, names=raw.schema.names), rechunk=False)
-    assert isinstance(frame, pl.DataFrame)
-    return frame.hash_rows(seed=HASH_SEED).to_numpy()
+    return native.row_hashes(raw, HASH_SEED)
 
 
 class DuplicateState:

@@ -13,6 +13,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import pyarrow as pa
 
+from worker.profiling.native import relation_sums
 from worker.profiling.relations.association import (
     GroupMoments,
     LabelCodes,
@@ -20,7 +21,7 @@ from worker.profiling.relations.association import (
     cramers_v,
     eta,
 )
-from worker.profiling.relations.comoments import CoMoments, ShiftedBatch
+from worker.profiling.relations.comoments import CoMoments
 from worker.profiling.relations.crosstab import crosstab_statistics
 from worker.profiling.relations.missing_together import MissingTogether
 from worker.profiling.relations.sample import RowSample
@@ -63,8 +64,6 @@ class RelationsState:
             name: batch.numbers[name] if name in batch.numbers else np.full(rows, np.nan)
             for name in self.numeric
         }
-        shifted = ShiftedBatch.of(numbers, self.numeric)
-        self.comoments.update_shifted(shifted)
         self.sample.update(numbers, batch.offset)
         codes = self.codes.encode(
             {
@@ -74,9 +73,16 @@ class RelationsState:
                 for name in self.labels
             }
         )
+        names = list(codes)
         sizes = {name: len(self.codes.index[name]) for name in self.labels}
-        self.pair_counts.update(codes, sizes)
-        self.groups.update(shifted, codes, sizes)
+        sums = relation_sums(
+            [numbers[name] for name in self.numeric],
+            [codes[name] for name in names],
+            [sizes[name] for name in names],
+        )
+        self.comoments.add(sums)
+        self.pair_counts.add(sums, names, sizes)
+        self.groups.add(sums, names, sizes)
 
     def merge(self, other: RelationsState) -> RelationsState:
         """Combine with a state over other rows of the same table (neither is changed)."""

@@ -9,6 +9,7 @@ import pytest
 from scipy.stats import f_oneway
 from scipy.stats.contingency import association
 
+from worker.profiling.native import relation_sums
 from worker.profiling.relations.association import (
     GroupMoments,
     LabelCodes,
@@ -16,7 +17,6 @@ from worker.profiling.relations.association import (
     cramers_v,
     eta,
 )
-from worker.profiling.relations.comoments import ShiftedBatch
 
 
 @pytest.mark.parametrize("shape", [(2, 2), (3, 4), (5, 2), (6, 6)])
@@ -43,7 +43,10 @@ def count_pairs(a: list, b: list, batch_rows: int, bound: int = 50):
             "b": pa.array(b[lo : lo + batch_rows], pa.string()),
         }
         encoded = codes.encode(batch)
-        counts.update(encoded, {name: len(codes.index[name]) for name in codes.columns})
+        sizes = {name: len(codes.index[name]) for name in codes.columns}
+        names = list(encoded)
+        sums = relation_sums([], [encoded[n] for n in names], [sizes[n] for n in names])
+        counts.add(sums, names, sizes)
     return codes, counts
 
 
@@ -87,8 +90,8 @@ def test_eta_matches_direct_sums_and_one_way_anova() -> None:
     moments = GroupMoments(["x"])
     for lo in range(0, 2000, 300):
         encoded = codes.encode({"g": pa.array(groups[lo : lo + 300])})
-        values = ShiftedBatch.of({"x": x[lo : lo + 300]}, ["x"])
-        moments.update(values, encoded, {"g": len(codes.index["g"])})
+        sizes = {"g": len(codes.index["g"])}
+        moments.add(relation_sums([x[lo : lo + 300]], [encoded["g"]], [sizes["g"]]), ["g"], sizes)
     value, n = eta(*dict(moments.pairs())[("x", "g")])
     assert n == 2000
     # Direct computation: eta = sqrt(between-group SS / total SS) (Fisher 1925).
@@ -124,9 +127,13 @@ def test_eta_of_every_pair_skips_missing_numbers_and_labels() -> None:
     for lo in range(0, rows, 400):
         part = frame.iloc[lo : lo + 400]
         encoded = codes.encode({name: pa.array(part[name]) for name in ("g", "h")})
-        values = ShiftedBatch.of({name: part[name].to_numpy() for name in ("x", "y")}, ["x", "y"])
         sizes = {name: len(codes.index[name]) for name in ("g", "h")}
-        moments.update(values, encoded, sizes)
+        sums = relation_sums(
+            [part[name].to_numpy() for name in ("x", "y")],
+            [encoded[name] for name in ("g", "h")],
+            [sizes[name] for name in ("g", "h")],
+        )
+        moments.add(sums, ["g", "h"], sizes)
     found = dict(moments.pairs())
     for number in ("x", "y"):
         for label in ("g", "h"):

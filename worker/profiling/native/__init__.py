@@ -1,0 +1,13 @@
+"""The engine's compiled per-batch passes, with the Python side that hands them Arrow
+and numpy buffers.
+
+The passes (``kernels.h``) read a batch once, with the interpreter lock released,
+where numpy would read it once per figure while holding the lock between calls:
+row hashes for duplicate rows, and the sums behind the co-moments, per-label
+moments and label-pair counts. They are built by pip when the project is installed.
+"""
+
+from worker.profiling.native.relations import RelationSums, relation_sums
+from worker.profiling.native.rowhash import row_hashes
+
+__all__ = ["RelationSums", "relation_sums", "row_hashes"]

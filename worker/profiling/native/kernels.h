@@ -1,0 +1,71 @@
+/* The engine's compiled per-batch passes: plain C over raw buffers, no Python.
+ *
+ * module.c parses Python arguments into these buffers and calls the passes with
+ * the interpreter lock released, so both cores can run them beside the reader.
+ */
+#ifndef TIDEWAITER_KERNELS_H
+#define TIDEWAITER_KERNELS_H
+
+#include <stdint.h>
+
+/* One column of a batch as Arrow lays it out.
+ * Text: offsets (32 or 64 bit, already moved to the array's first row) into data.
+ * Fixed width: width bytes per row in data, from the array's first row.
+ * validity: Arrow's bitmap (bit validity_offset + row), or NULL when no row is null. */
+typedef struct {
+    const uint8_t *validity;
+    int64_t validity_offset;
+    const void *offsets;
+    int offset_bits; /* 32 or 64 for text, 0 for fixed width */
+    const uint8_t *data;
+    int64_t data_length;
+    int64_t width;
+} column_layout;
+
+/* Mixes one column's cells into the running row hashes h[0..rows). */
+void row_hash_column(uint64_t *h, int64_t rows, const column_layout *column, uint64_t seed);
+
+/* Ends the row hashes (a final avalanche, so every input bit reaches every output bit). */
+void row_hash_finish(uint64_t *h, int64_t rows);
+
+/* Sums of one batch for the co-moments of p numeric columns and the per-label moments.
+ *
+ * x[i][r] is column i's value in row r, NaN (or any non-finite value) where missing.
+ * shift[i] receives the mean of column i's present values; every sum below is over
+ * z = x - shift, 0 where missing.
+ * Per column i, over the rows where it is present: n[i], s[i] = sum z_i, q[i] = sum
+ * z_i^2. Per ordered pair (i, j), over the rows where i is present and j missing:
+ * lost_n[i*p+j], lost_s[i*p+j] = sum z_i, lost_q[i*p+j] = sum z_i^2. Over all rows:
+ * cross[i*p+j] = sum z_i z_j for i < j.
+ * For each of k label columns, codes[l][r] is the row's label (-1 where missing) and
+ * label c's entries start at bases[l] + c: gn, gs and gq (one row of p per label) get
+ * the count, sum z and sum z^2 of each numeric column present in the rows with that label.
+ * For each pair of label columns (a < b, in order), tables[pair_offsets[pair] +
+ * codes[a][r] * sizes[b] + codes[b][r]] counts the rows where both are present.
+ * Codes at or past their column's size are skipped. */
+typedef struct {
+    int64_t rows;
+    int p;
+    const double *const *x;
+    int k;
+    const int64_t *const *codes;
+    const int64_t *bases;
+    const int64_t *sizes;
+    const int64_t *pair_offsets;
+} relation_input;
+
+typedef struct {
+    double *shift;
+    int64_t *n;
+    double *s, *q, *cross;
+    int64_t *lost_n;
+    double *lost_s, *lost_q;
+    int64_t *gn;
+    double *gs, *gq;
+    int64_t *tables;
+} relation_sums;
+
+/* Returns 0, or -1 when memory for p scratch values could not be had. */
+int relation_batch(const relation_input *in, relation_sums *out);
+
+#endif

@@ -1,0 +1,235 @@
+/* Python bindings of the compiled passes (kernels.h): argument checks, then the
+ * pass itself with the interpreter lock released.
+ *
+ * Every array comes in through the buffer protocol (numpy arrays, Arrow buffers)
+ * and outputs are buffers the caller allocated, so this file needs no numpy or
+ * Arrow headers. Sizes are checked here so a wrong call raises instead of
+ * reading or writing outside a buffer.
+ */
+#define PY_SSIZE_T_CLEAN
+#include <Python.h>
+
+#include "kernels.h"
+
+/* A buffer of at least `need` bytes, writable when asked; 0 with an exception set if not. */
+static int get_buffer(PyObject *obj, Py_buffer *view, Py_ssize_t need, int writable,
+                      const char *what) {
+    int flags = writable ? PyBUF_WRITABLE | PyBUF_C_CONTIGUOUS : PyBUF_C_CONTIGUOUS;
+    if (PyObject_GetBuffer(obj, view, flags) != 0) return 0;
+    if (view->len < need) {
+        PyErr_Format(PyExc_ValueError, "%s holds %zd bytes, %zd needed", what, view->len, need);
+        PyBuffer_Release(view);
+        return 0;
+    }
+    return 1;
+}
+
+static PyObject *hash_column(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *out_obj, *validity_obj, *offsets_obj, *data_obj;
+    Py_ssize_t rows, validity_offset, width;
+    int offset_bits;
+    unsigned long long seed;
+    if (!PyArg_ParseTuple(args, "OnOnOiOnK", &out_obj, &rows, &validity_obj, &validity_offset,
+                          &offsets_obj, &offset_bits, &data_obj, &width, &seed))
+        return NULL;
+    if (rows < 0 || validity_offset < 0 || width < 0 ||
+        (offset_bits != 0 && offset_bits != 32 && offset_bits != 64)) {
+        PyErr_SetString(PyExc_ValueError, "bad column layout");
+        return NULL;
+    }
+    Py_buffer out, validity = {0}, offsets = {0}, data = {0};
+    if (!get_buffer(out_obj, &out, rows * 8, 1, "the row hashes")) return NULL;
+    int has_validity = validity_obj != Py_None, has_offsets = offset_bits != 0;
+    int ok = !has_validity ||
+             get_buffer(validity_obj, &validity, (validity_offset + rows + 7) / 8, 0, "validity");
+    ok = ok && (!has_offsets ||
+                get_buffer(offsets_obj, &offsets, (rows + 1) * (offset_bits / 8), 0, "offsets"));
+    ok = ok && get_buffer(data_obj, &data, has_offsets ? 0 : rows * width, 0, "data");
+    if (ok && has_offsets && rows > 0) {
+        /* Every cell must lie inside the data buffer: offsets ascend, so the ends tell. */
+        int64_t first, last;
+        if (offset_bits == 32) {
+            first = ((const int32_t *)offsets.buf)[0];
+            last = ((const int32_t *)offsets.buf)[rows];
+        } else {
+            first = ((const int64_t *)offsets.buf)[0];
+            last = ((const int64_t *)offsets.buf)[rows];
+        }
+        if (first < 0 || last < first || last > data.len) {
+            PyErr_SetString(PyExc_ValueError, "offsets point outside the data");
+            ok = 0;
+        }
+    }
+    if (ok) {
+        column_layout column = {
+            .validity = has_validity ? validity.buf : NULL,
+            .validity_offset = validity_offset,
+            .offsets = has_offsets ? offsets.buf : NULL,
+            .offset_bits = offset_bits,
+            .data = data.buf,
+            .data_length = data.len,
+            .width = width,
+        };
+        Py_BEGIN_ALLOW_THREADS
+        row_hash_column(out.buf, rows, &column, seed);
+        Py_END_ALLOW_THREADS
+    }
+    if (data.obj != NULL) PyBuffer_Release(&data);
+    if (offsets.obj != NULL) PyBuffer_Release(&offsets);
+    if (validity.obj != NULL) PyBuffer_Release(&validity);
+    PyBuffer_Release(&out);
+    if (!ok) return NULL;
+    Py_RETURN_NONE;
+}
+
+static PyObject *hash_finish(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *out_obj;
+    if (!PyArg_ParseTuple(args, "O", &out_obj)) return NULL;
+    Py_buffer out;
+    if (!get_buffer(out_obj, &out, 0, 1, "the row hashes")) return NULL;
+    Py_BEGIN_ALLOW_THREADS
+    row_hash_finish(out.buf, out.len / 8);
+    Py_END_ALLOW_THREADS
+    PyBuffer_Release(&out);
+    Py_RETURN_NONE;
+}
+
+/* Buffers of a sequence of arrays, each of at least `need` bytes; the count taken, or -1. */
+static Py_ssize_t get_buffers(PyObject *seq, Py_buffer *views, Py_ssize_t count,
+                              Py_ssize_t need, const char *what) {
+    for (Py_ssize_t i = 0; i < count; i++) {
+        PyObject *item = PySequence_Fast_GET_ITEM(seq, i);
+        if (!get_buffer(item, &views[i], need, 0, what)) {
+            for (Py_ssize_t j = 0; j < i; j++) PyBuffer_Release(&views[j]);
+            return -1;
+        }
+    }
+    return count;
+}
+
+enum { SHIFT, N, S, Q, CROSS, LOST_N, LOST_S, LOST_Q, GN, GS, GQ, TABLES, OUTPUTS };
+
+static PyObject *relation_sums_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *x_obj, *codes_obj, *bases_obj, *sizes_obj, *pair_offsets_obj, *outputs_obj;
+    Py_ssize_t rows;
+    if (!PyArg_ParseTuple(args, "nOOOOOO", &rows, &x_obj, &codes_obj, &bases_obj, &sizes_obj,
+                          &pair_offsets_obj, &outputs_obj))
+        return NULL;
+    PyObject *x_seq = PySequence_Fast(x_obj, "values must be a sequence");
+    if (x_seq == NULL) return NULL;
+    PyObject *codes_seq = PySequence_Fast(codes_obj, "codes must be a sequence");
+    PyObject *out_seq = codes_seq ? PySequence_Fast(outputs_obj, "outputs must be a sequence")
+                                  : NULL;
+    PyObject *result = NULL;
+    Py_ssize_t p = PySequence_Fast_GET_SIZE(x_seq);
+    Py_ssize_t k = codes_seq ? PySequence_Fast_GET_SIZE(codes_seq) : 0;
+    Py_buffer *x_views = PyMem_Calloc((size_t)p + 1, sizeof(Py_buffer));
+    Py_buffer *code_views = PyMem_Calloc((size_t)k + 1, sizeof(Py_buffer));
+    const double **x = PyMem_Calloc((size_t)p + 1, sizeof(double *));
+    const int64_t **codes = PyMem_Calloc((size_t)k + 1, sizeof(int64_t *));
+    Py_buffer bases = {0}, sizes = {0}, pair_offsets = {0}, outs[OUTPUTS];
+    Py_ssize_t got_x = -1, got_codes = -1, got_outs = 0;
+    int small = 0;
+    if (out_seq == NULL) goto done;
+    if (!x_views || !code_views || !x || !codes) {
+        PyErr_NoMemory();
+        goto done;
+    }
+    if (rows < 0 || PySequence_Fast_GET_SIZE(out_seq) != OUTPUTS) {
+        PyErr_SetString(PyExc_ValueError, "bad row count or number of outputs");
+        goto done;
+    }
+    got_x = get_buffers(x_seq, x_views, p, rows * 8, "a numeric column");
+    if (got_x < 0) goto done;
+    got_codes = get_buffers(codes_seq, code_views, k, rows * 8, "a label column's codes");
+    if (got_codes < 0) goto done;
+    if (!get_buffer(bases_obj, &bases, k * 8, 0, "bases")) goto done;
+    if (!get_buffer(sizes_obj, &sizes, k * 8, 0, "sizes")) goto done;
+    if (!get_buffer(pair_offsets_obj, &pair_offsets, (k * (k - 1) / 2) * 8, 0, "pair offsets"))
+        goto done;
+    const int64_t *size = sizes.buf, *base = bases.buf, *pair_at = pair_offsets.buf;
+    Py_ssize_t labels = 0, cells = 0;
+    for (Py_ssize_t l = 0; l < k; l++) {
+        if (size[l] < 0 || base[l] < 0) small = 1;
+        if (base[l] + size[l] > labels) labels = base[l] + size[l];
+    }
+    for (Py_ssize_t a = 0, pair = 0; a < k; a++)
+        for (Py_ssize_t b = a + 1; b < k; b++, pair++)
+            if (pair_at[pair] < 0) small = 1;
+            else if (pair_at[pair] + size[a] * size[b] > cells)
+                cells = pair_at[pair] + size[a] * size[b];
+    if (small) {
+        PyErr_SetString(PyExc_ValueError, "negative label sizes or offsets");
+        goto done;
+    }
+    Py_ssize_t need[OUTPUTS] = {
+        [SHIFT] = p * 8,      [N] = p * 8,          [S] = p * 8,          [Q] = p * 8,
+        [CROSS] = p * p * 8,  [LOST_N] = p * p * 8, [LOST_S] = p * p * 8, [LOST_Q] = p * p * 8,
+        [GN] = labels * p * 8, [GS] = labels * p * 8, [GQ] = labels * p * 8, [TABLES] = cells * 8,
+    };
+    for (; got_outs < OUTPUTS; got_outs++)
+        if (!get_buffer(PySequence_Fast_GET_ITEM(out_seq, got_outs), &outs[got_outs],
+                        need[got_outs], 1, "an output"))
+            goto done;
+    for (Py_ssize_t i = 0; i < p; i++) x[i] = x_views[i].buf;
+    for (Py_ssize_t l = 0; l < k; l++) codes[l] = code_views[l].buf;
+    relation_input in = {
+        .rows = rows, .p = (int)p, .x = x, .k = (int)k, .codes = codes,
+        .bases = base, .sizes = size, .pair_offsets = pair_at,
+    };
+    relation_sums sums = {
+        .shift = outs[SHIFT].buf, .n = outs[N].buf, .s = outs[S].buf, .q = outs[Q].buf,
+        .cross = outs[CROSS].buf, .lost_n = outs[LOST_N].buf, .lost_s = outs[LOST_S].buf,
+        .lost_q = outs[LOST_Q].buf, .gn = outs[GN].buf, .gs = outs[GS].buf, .gq = outs[GQ].buf,
+        .tables = outs[TABLES].buf,
+    };
+    int status;
+    Py_BEGIN_ALLOW_THREADS
+    status = relation_batch(&in, &sums);
+    Py_END_ALLOW_THREADS
+    if (status != 0) {
+        PyErr_NoMemory();
+        goto done;
+    }
+    result = Py_None;
+    Py_INCREF(result);
+done:
+    for (Py_ssize_t i = 0; i < got_outs; i++) PyBuffer_Release(&outs[i]);
+    if (pair_offsets.obj) PyBuffer_Release(&pair_offsets);
+    if (sizes.obj) PyBuffer_Release(&sizes);
+    if (bases.obj) PyBuffer_Release(&bases);
+    for (Py_ssize_t i = 0; i < got_codes; i++) PyBuffer_Release(&code_views[i]);
+    for (Py_ssize_t i = 0; i < got_x; i++) PyBuffer_Release(&x_views[i]);
+    PyMem_Free(x_views);
+    PyMem_Free(code_views);
+    PyMem_Free(x);
+    PyMem_Free(codes);
+    Py_XDECREF(out_seq);
+    Py_XDECREF(codes_seq);
+    Py_DECREF(x_seq);
+    return result;
+}
+
+static PyMethodDef methods[] = {
+    {"hash_column", hash_column, METH_VARARGS,
+     "hash_column(out, rows, validity, validity_offset, offsets, offset_bits, data, width, "
+     "seed): mix one column's cells into the uint64 row hashes in out."},
+    {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
+    {"relation_sums", relation_sums_of, METH_VARARGS,
+     "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "
+     "adding a batch's across-column sums to the twelve output buffers."},
+    {NULL, NULL, 0, NULL},
+};
+
+static struct PyModuleDef module = {
+    .m_base = PyModuleDef_HEAD_INIT,
+    .m_name = "_kernels",
+    .m_doc = "The engine's compiled per-batch passes.",
+    .m_size = -1,
+    .m_methods = methods,
+};
+
+PyMODINIT_FUNC PyInit__kernels(void) { return PyModule_Create(&module); }
