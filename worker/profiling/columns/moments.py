@@ -1,9 +1,10 @@
 """Streaming mean, variance, skewness and kurtosis from mergeable central moments.
 
-Each batch's central moments are computed in two passes with numpy (mean
-first, then powers of the deviations), which keeps the accuracy that a naive
-sum of squares loses on data such as NIST's NumAcc sets; batches combine with
-the pairwise update formulas.
+Each batch's central moments are computed in two passes by the compiled
+number pass (``worker.profiling.native.number_summary``: the mean first, then
+powers of the deviations), which keeps the accuracy that a naive sum of squares
+loses on data such as NIST's NumAcc sets; batches combine with the pairwise
+update formulas.
 
 References: T. F. Chan, G. H. Golub and R. J. LeVeque, "Updating formulae and a
 pairwise algorithm for computing sample variances" (1979); P. Pébay, "Formulas
@@ -17,6 +18,8 @@ import math
 from typing import Any
 
 import numpy as np
+
+from worker.profiling.native import NumberSummary, number_summary
 
 
 class MomentsState:
@@ -34,33 +37,28 @@ class MomentsState:
 
     @classmethod
     def of(cls, values: np.ndarray) -> MomentsState:
-        """The moments of one array of finite values, computed in two passes."""
+        """The moments of one array of values (NaN skipped), computed in two passes."""
+        return cls.from_summary(number_summary(values))
+
+    @classmethod
+    def from_summary(cls, summary: NumberSummary) -> MomentsState:
+        """The moments of one batch from its compiled summary."""
         state = cls()
-        n = int(values.size)
-        if n == 0:
+        if summary.n == 0:
             return state
-        total = float(values.sum())
-        mean = total / n
-        dev = values - mean
-        # A second pass corrects the mean's rounding (the "corrected two-pass" of Chan et al.).
-        correction = float(dev.sum()) / n
-        mean += correction
-        dev -= correction
-        dev2 = dev * dev
-        # einsum, not np.dot: its own loop, without BLAS threads that fight the
-        # column threads for the cores (measured 2.5 times slower here).
-        state.n = n
-        state.mean = mean
-        state.m2 = float(dev2.sum())
-        state.m3 = float(np.einsum("i,i->", dev2, dev))
-        state.m4 = float(np.einsum("i,i->", dev2, dev2))
-        state.total = total
-        state.minimum = float(values.min())
-        state.maximum = float(values.max())
+        state.n = summary.n
+        state.mean = summary.mean
+        state.m2, state.m3, state.m4 = summary.m2, summary.m3, summary.m4
+        state.total = summary.total
+        state.minimum, state.maximum = summary.minimum, summary.maximum
         return state
 
     def update(self, values: np.ndarray) -> None:
-        merged = self.merge(MomentsState.of(values))
+        self.add(number_summary(values))
+
+    def add(self, summary: NumberSummary) -> None:
+        """Take in one batch's summary."""
+        merged = self.merge(MomentsState.from_summary(summary))
         self.__dict__.update(merged.__dict__)
 
     def merge(self, other: MomentsState) -> MomentsState:

@@ -25,6 +25,7 @@ import numpy as np
 from worker.profiling.columns.moments import MomentsState
 from worker.profiling.columns.quantiles import QuantileState
 from worker.profiling.columns.sentinels import SentinelCounts, suspected_sentinels
+from worker.profiling.native import number_summary
 from worker.profiling.options import ProfileOptions
 
 _PERCENTILES = np.linspace(0.0, 1.0, 101)
@@ -45,16 +46,15 @@ class NumericState:
 
     def update(self, numbers: np.ndarray) -> None:
         """Add one batch's parsed numbers (NaN where missing or not a number)."""
-        values = numbers[~np.isnan(numbers)]
-        if values.size == 0:
+        summary = number_summary(numbers, self.sentinels.candidates)
+        if summary.n == 0:
             return
-        self.moments.update(values)
-        self.quantiles.update(values)
-        self.zeros += int(np.count_nonzero(values == 0.0))
-        self.negatives += int(np.count_nonzero(values < 0.0))
-        if self.integers:
-            self.integers = bool(np.array_equal(values, np.trunc(values)))
-        self.sentinels.update(values)
+        self.moments.add(summary)
+        self.quantiles.update(summary.values)
+        self.zeros += summary.zeros
+        self.negatives += summary.negatives
+        self.integers = self.integers and summary.integers
+        self.sentinels.add(summary.candidate_counts)
 
     def merge(self, other: NumericState) -> NumericState:
         out = NumericState(self.options)

@@ -31,11 +31,11 @@ class SentinelCounts:
         self.candidates = np.asarray(sorted(set(candidates) | {0.0}), dtype=np.float64)
         self.counts: Counter[float] = Counter()
 
-    def update(self, values: np.ndarray) -> None:
-        hits = values[np.isin(values, self.candidates)]
-        if hits.size:
-            found, counts = np.unique(hits, return_counts=True)
-            self.counts.update(dict(zip(found.tolist(), counts.tolist(), strict=True)))
+    def add(self, counts: np.ndarray) -> None:
+        """Add counts of each candidate (in the order of ``candidates``)."""
+        for value, count in zip(self.candidates.tolist(), counts.tolist(), strict=True):
+            if count:
+                self.counts[value] += count
 
     def merge(self, other: SentinelCounts) -> SentinelCounts:
         out = SentinelCounts(self.candidates.tolist())

@@ -3,11 +3,21 @@ and numpy buffers.
 
 The passes (``kernels.h``) read a batch once, with the interpreter lock released,
 where numpy would read it once per figure while holding the lock between calls:
-row hashes for duplicate rows, and the sums behind the co-moments, per-label
-moments and label-pair counts. They are built by pip when the project is installed.
+row hashes for duplicate rows and distinct counts, the sums behind the
+co-moments, per-label moments and label-pair counts, each numeric column's
+moments and counts, and HyperLogLog register updates. They are built by pip
+when the project is installed.
 """
 
+from worker.profiling.native.numbers import NumberSummary, hll_add, number_summary
 from worker.profiling.native.relations import RelationSums, relation_sums
 from worker.profiling.native.rowhash import row_hashes
 
-__all__ = ["RelationSums", "relation_sums", "row_hashes"]
+__all__ = [
+    "NumberSummary",
+    "RelationSums",
+    "hll_add",
+    "number_summary",
+    "relation_sums",
+    "row_hashes",
+]

@@ -68,4 +68,19 @@ typedef struct {
 /* Returns 0, or -1 when memory for p scratch values could not be had. */
 int relation_batch(const relation_input *in, relation_sums *out);
 
+/* The summary of one numeric column's batch (numbers.c). */
+typedef struct {
+    int64_t n, zeros, negatives, integers; /* integers: 1 when every value is whole */
+    double total, minimum, maximum, mean, m2, m3, m4; /* m_k: sums of (x - mean)^k */
+    int64_t *candidate_counts;                          /* one per candidate, added to */
+} number_summary;
+
+/* Copies the finite values of x[0..rows) to kept (in order) and summarises them;
+ * returns how many were kept. The candidates must be sorted ascending. */
+int64_t number_batch(const double *x, int64_t rows, const double *candidates,
+                     int64_t candidate_count, double *kept, number_summary *out);
+
+/* Adds count hashes to 2^precision HyperLogLog registers (4 <= precision <= 24). */
+void hll_add(uint8_t *registers, int precision, const uint64_t *hashes, int64_t count);
+
 #endif

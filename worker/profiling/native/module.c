@@ -213,6 +213,58 @@ done:
     return result;
 }
 
+static PyObject *number_summary_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *x_obj, *candidates_obj, *kept_obj, *counts_obj;
+    if (!PyArg_ParseTuple(args, "OOOO", &x_obj, &candidates_obj, &kept_obj, &counts_obj))
+        return NULL;
+    Py_buffer x, candidates = {0}, kept = {0}, counts = {0};
+    if (!get_buffer(x_obj, &x, 0, 0, "the values")) return NULL;
+    int ok = get_buffer(candidates_obj, &candidates, 0, 0, "the candidates");
+    ok = ok && get_buffer(kept_obj, &kept, x.len, 1, "the kept values");
+    ok = ok && get_buffer(counts_obj, &counts, candidates.len, 1, "the candidate counts");
+    PyObject *result = NULL;
+    if (ok) {
+        number_summary summary = {.candidate_counts = counts.buf};
+        Py_BEGIN_ALLOW_THREADS
+        number_batch(x.buf, x.len / 8, candidates.buf, candidates.len / 8, kept.buf, &summary);
+        Py_END_ALLOW_THREADS
+        result = Py_BuildValue("(LLLNddddddd)", (long long)summary.n, (long long)summary.zeros,
+                               (long long)summary.negatives, PyBool_FromLong(summary.integers),
+                               summary.total, summary.minimum, summary.maximum, summary.mean,
+                               summary.m2, summary.m3, summary.m4);
+    }
+    if (counts.obj != NULL) PyBuffer_Release(&counts);
+    if (kept.obj != NULL) PyBuffer_Release(&kept);
+    if (candidates.obj != NULL) PyBuffer_Release(&candidates);
+    PyBuffer_Release(&x);
+    return result;
+}
+
+static PyObject *hll_add_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *registers_obj, *hashes_obj;
+    int precision;
+    if (!PyArg_ParseTuple(args, "OiO", &registers_obj, &precision, &hashes_obj)) return NULL;
+    if (precision < 4 || precision > 24) {
+        PyErr_SetString(PyExc_ValueError, "precision must be 4 to 24");
+        return NULL;
+    }
+    Py_buffer registers, hashes;
+    if (!get_buffer(registers_obj, &registers, (Py_ssize_t)1 << precision, 1, "the registers"))
+        return NULL;
+    if (!get_buffer(hashes_obj, &hashes, 0, 0, "the hashes")) {
+        PyBuffer_Release(&registers);
+        return NULL;
+    }
+    Py_BEGIN_ALLOW_THREADS
+    hll_add(registers.buf, precision, hashes.buf, hashes.len / 8);
+    Py_END_ALLOW_THREADS
+    PyBuffer_Release(&hashes);
+    PyBuffer_Release(&registers);
+    Py_RETURN_NONE;
+}
+
 static PyMethodDef methods[] = {
     {"hash_column", hash_column, METH_VARARGS,
      "hash_column(out, rows, validity, validity_offset, offsets, offset_bits, data, width, "
@@ -221,6 +273,12 @@ static PyMethodDef methods[] = {
     {"relation_sums", relation_sums_of, METH_VARARGS,
      "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "
      "adding a batch's across-column sums to the twelve output buffers."},
+    {"number_summary", number_summary_of, METH_VARARGS,
+     "number_summary(values, candidates, kept, counts): copy the finite float64 values to "
+     "kept, add each candidate's count to counts; (n, zeros, negatives, integers, total, "
+     "minimum, maximum, mean, m2, m3, m4)."},
+    {"hll_add", hll_add_of, METH_VARARGS,
+     "hll_add(registers, precision, hashes): add uint64 hashes to the uint8 registers."},
     {NULL, NULL, 0, NULL},
 };
 
