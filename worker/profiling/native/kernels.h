@@ -8,6 +8,15 @@
 
 #include <stdint.h>
 
+/* On x86-64 with GCC, a second build of a pass for AVX2, chosen at load time where
+ * the processor has it: loops written in independent lanes then run as vector
+ * instructions, and other processors run the baseline build. */
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+#define VECTOR_CLONES __attribute__((target_clones("avx2", "default")))
+#else
+#define VECTOR_CLONES
+#endif
+
 /* One column of a batch as Arrow lays it out.
  * Text: offsets (32 or 64 bit, already moved to the array's first row) into data.
  * Fixed width: width bytes per row in data, from the array's first row.

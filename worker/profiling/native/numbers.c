@@ -16,14 +16,6 @@
 
 #define LANES 4
 
-/* On x86-64, a second build of the pass for AVX2, chosen at load time where the
- * processor has it: the four-lane loops then run as vector instructions. */
-#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
-#define VECTOR_CLONES __attribute__((target_clones("avx2", "default")))
-#else
-#define VECTOR_CLONES
-#endif
-
 /* The first of the k sorted candidates that is not below v (k when none). */
 static inline int64_t lower_bound(const double *restrict candidates, int64_t k, double v) {
     int64_t low = 0, high = k;
