@@ -1,9 +1,9 @@
 /* 64-bit row hashes over a batch's raw cells, one column at a time.
  *
- * A row's hash takes each cell in turn: a word of its length and column, then its
- * bytes eight at a time (so "1" and "1.0" differ, a null differs from an empty text
- * and swapping two columns' cells changes the hash), with the rounds and the final
- * avalanche of XXH64. Every round is invertible in the running hash, so two rows
+ * A row's hash takes each cell in turn as one or more words (its length and bytes, see
+ * mix_cell: "1" and "1.0" differ, a null differs from an empty text, and the column's
+ * seed in every word makes swapping two columns' cells change the hash), with the
+ * rounds and the final avalanche of XXH64. Every round is invertible in the running hash, so two rows
  * that differ collide only by chance, about one in 2^64 per pair.
  * Going column by column reads each column's buffers in order, and the row hashes
  * (8 bytes a row) stay in the second-level cache for a batch of some 50,000 rows.
@@ -47,18 +47,23 @@ static inline uint64_t load_tail(const uint8_t *p, int64_t n, const uint8_t *end
     return word;
 }
 
-/* Mixes one cell (its length and column first, then its bytes) into the row's hash. */
+/* Mixes one cell into the row's hash, in words xored with the column's seed. A cell
+ * of at most 7 bytes is one word: its bytes, and its length in the top byte (0 to 7).
+ * A longer cell is a word of its length with the top byte 0x80, then its bytes eight
+ * at a time. A null is the word of all ones (``mix_null``). No two cells of a column
+ * give the same sequence of words. */
 static inline uint64_t mix_cell(uint64_t h, const uint8_t *p, int64_t n, const uint8_t *end,
                                 uint64_t seed) {
-    h = round_word(h, seed ^ (uint64_t)n);
+    if (n < 8) return round_word(h, seed ^ (n > 0 ? load_tail(p, n, end) : 0) ^ ((uint64_t)n << 56));
+    h = round_word(h, seed ^ (uint64_t)n ^ (0x80ULL << 56));
     while (n >= 8) {
         uint64_t word;
         memcpy(&word, p, 8);
-        h = round_word(h, word);
+        h = round_word(h, seed ^ word);
         p += 8;
         n -= 8;
     }
-    if (n > 0) h = round_word(h, load_tail(p, n, end));
+    if (n > 0) h = round_word(h, seed ^ load_tail(p, n, end));
     return h;
 }
 
@@ -68,7 +73,7 @@ static inline int is_valid(const column_layout *c, int64_t row) {
     return (c->validity[bit >> 3] >> (bit & 7)) & 1;
 }
 
-/* A null cell: the length word of a cell that cannot exist (2^64 - 1 bytes). */
+/* A null cell: the word of all ones (top byte 0xFF, which no cell's first word has). */
 static inline uint64_t mix_null(uint64_t h, uint64_t seed) { return round_word(h, ~seed); }
 
 void row_hash_column(uint64_t *h, int64_t rows, const column_layout *c, uint64_t seed) {

@@ -1,7 +1,9 @@
 """Which columns tend to be missing in the same rows.
 
-Per batch one matrix product of the missing masks gives, for every pair of
-columns, how many rows miss both; with the per-column missing counts and the
+Per batch the rows that miss something are grouped by which columns they miss
+(delivered files show few such patterns), and a product of the few patterns
+weighted by their counts gives, for every pair of columns, how many rows miss
+both; with the per-column missing counts and the
 row count that is the whole 2×2 table of the two masks, so the state is a
 p×p integer matrix and merging is addition. The strength of the tendency is
 the phi coefficient of the two masks (Pearson r of two 0/1 variables) and
@@ -39,10 +41,7 @@ class MissingTogether:
             gapped |= mask
         rows = np.flatnonzero(gapped)
         if rows.size:
-            # float32 sums of ones are exact below 2**24 rows; larger batches take float64.
-            width = np.float32 if rows.size < 2**24 else np.float64
-            m = np.column_stack([mask[rows] for mask in masks]).astype(width)
-            self.both += np.rint(m.T @ m).astype(np.int64)
+            self.both += _pair_counts([mask[rows] for mask in masks])
 
     def merge(self, other: MissingTogether) -> MissingTogether:
         if other.columns != self.columns:
@@ -82,3 +81,24 @@ class MissingTogether:
                 )
         out.sort(key=lambda item: (-item["phi"], item["a"], item["b"]))
         return out
+
+
+def _pair_counts(masks: list[np.ndarray]) -> np.ndarray:
+    """[i, j]: rows where both masks i and j are set (the masks over the same rows).
+
+    Up to 64 columns each row's pattern is one 64-bit word: the distinct words and
+    their counts make the product small and integer, so no BLAS threads wake for
+    it; wider tables take one float product of the masks.
+    """
+    if len(masks) > 64:
+        # float32 sums of ones are exact below 2**24 rows; larger batches take float64.
+        width = np.float32 if masks[0].size < 2**24 else np.float64
+        m = np.column_stack(masks).astype(width)
+        return np.rint(m.T @ m).astype(np.int64)
+    words = np.zeros(masks[0].size, dtype=np.uint64)
+    for bit, mask in enumerate(masks):
+        words |= mask.astype(np.uint64) << np.uint64(bit)
+    patterns, counts = np.unique(words, return_counts=True)
+    bits = (patterns[:, None] >> np.arange(len(masks), dtype=np.uint64)) & np.uint64(1)
+    bits = bits.astype(np.int64)
+    return (bits * counts[:, None]).T @ bits

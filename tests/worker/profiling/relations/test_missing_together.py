@@ -52,3 +52,15 @@ def test_all_pairs_phi_matches_pandas_and_merge_adds() -> None:
     assert found[("depth", "site")] == pytest.approx(expected.loc["depth", "site"], abs=1e-12)
     assert ("site", "notes") not in found  # never missing together
     assert merged.rows == len(masks)
+
+
+@pytest.mark.parametrize("columns", [3, 64, 70])
+def test_pair_counts_match_a_product_of_the_masks(columns) -> None:
+    # Up to 64 columns the rows are grouped by pattern, above that one float product:
+    # both must give numpy's integer product of the 0/1 masks.
+    rng = np.random.default_rng(columns)
+    masks = rng.random((3000, columns)) < rng.uniform(0.01, 0.3, columns)
+    state = MissingTogether([f"c{i}" for i in range(columns)])
+    state.update({f"c{i}": masks[:, i] for i in range(columns)})
+    ints = masks.astype(np.int64)
+    assert (state.both == ints.T @ ints).all()
