@@ -23,7 +23,7 @@ import math
 
 import numpy as np
 
-from worker.profiling.native import hll_add
+from worker.profiling.native import hll_add, hll_add_numbers
 
 
 class HyperLogLog:
@@ -43,6 +43,11 @@ class HyperLogLog:
         if hashes.size == 0:
             return
         hll_add(self.registers, self.precision, hashes)
+
+    def update_numbers(self, values: np.ndarray, seed: int) -> None:
+        """Add float64 values (NaN skipped), hashed in the same pass by SplitMix64's
+        finaliser with ``seed`` (as ``columns.distinct.hash_numbers`` hashes them)."""
+        hll_add_numbers(self.registers, self.precision, values, seed)
 
     def merge(self, other: HyperLogLog) -> None:
         """Take in another sketch of the same precision (the union of both streams)."""

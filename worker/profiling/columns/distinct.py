@@ -72,11 +72,11 @@ class DistinctState:
     def update(self, values: pa.Array | np.ndarray) -> None:
         """Add the non-missing values of a batch (text as Arrow, numbers as numpy)."""
         if isinstance(values, np.ndarray):
+            if self._sketch is not None:
+                self._sketch.update_numbers(values, _SEED)
+                return
             numbers = np.asarray(values, dtype=np.float64)
             numbers = numbers[~np.isnan(numbers)]
-            if numbers.size and self._sketch is not None:
-                self._sketch.update(hash_numbers(numbers))
-                return
             values = pa.array(numbers + 0.0)  # -0.0 and 0.0 are one number
         else:
             values = _present(values)

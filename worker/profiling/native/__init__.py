@@ -9,7 +9,12 @@ moments and counts, and HyperLogLog register updates. They are built by pip
 when the project is installed.
 """
 
-from worker.profiling.native.numbers import NumberSummary, hll_add, number_summary
+from worker.profiling.native.numbers import (
+    NumberSummary,
+    hll_add,
+    hll_add_numbers,
+    number_summary,
+)
 from worker.profiling.native.relations import RelationSums, relation_sums
 from worker.profiling.native.rowhash import row_hashes
 
@@ -17,6 +22,7 @@ __all__ = [
     "NumberSummary",
     "RelationSums",
     "hll_add",
+    "hll_add_numbers",
     "number_summary",
     "relation_sums",
     "row_hashes",

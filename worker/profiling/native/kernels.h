@@ -92,4 +92,9 @@ int64_t number_batch(const double *x, int64_t rows, const double *candidates,
 /* Adds count hashes to 2^precision HyperLogLog registers (4 <= precision <= 24). */
 void hll_add(uint8_t *registers, int precision, const uint64_t *hashes, int64_t count);
 
+/* Adds count float64 values (NaN skipped) to the registers, each hashed by SplitMix64's
+ * finaliser over its bits xored with seed. */
+void hll_add_numbers(uint8_t *registers, int precision, const double *values, int64_t count,
+                     uint64_t seed);
+
 #endif

@@ -265,6 +265,32 @@ static PyObject *hll_add_of(PyObject *self, PyObject *args) {
     Py_RETURN_NONE;
 }
 
+static PyObject *hll_add_numbers_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *registers_obj, *values_obj;
+    int precision;
+    unsigned long long seed;
+    if (!PyArg_ParseTuple(args, "OiOK", &registers_obj, &precision, &values_obj, &seed))
+        return NULL;
+    if (precision < 4 || precision > 24) {
+        PyErr_SetString(PyExc_ValueError, "precision must be 4 to 24");
+        return NULL;
+    }
+    Py_buffer registers, values;
+    if (!get_buffer(registers_obj, &registers, (Py_ssize_t)1 << precision, 1, "the registers"))
+        return NULL;
+    if (!get_buffer(values_obj, &values, 0, 0, "the values")) {
+        PyBuffer_Release(&registers);
+        return NULL;
+    }
+    Py_BEGIN_ALLOW_THREADS
+    hll_add_numbers(registers.buf, precision, values.buf, values.len / 8, seed);
+    Py_END_ALLOW_THREADS
+    PyBuffer_Release(&values);
+    PyBuffer_Release(&registers);
+    Py_RETURN_NONE;
+}
+
 static PyMethodDef methods[] = {
     {"hash_column", hash_column, METH_VARARGS,
      "hash_column(out, rows, validity, validity_offset, offsets, offset_bits, data, width, "
@@ -279,6 +305,9 @@ static PyMethodDef methods[] = {
      "minimum, maximum, mean, m2, m3, m4)."},
     {"hll_add", hll_add_of, METH_VARARGS,
      "hll_add(registers, precision, hashes): add uint64 hashes to the uint8 registers."},
+    {"hll_add_numbers", hll_add_numbers_of, METH_VARARGS,
+     "hll_add_numbers(registers, precision, values, seed): add float64 values (NaN "
+     "skipped), hashed by SplitMix64's finaliser, to the uint8 registers."},
     {NULL, NULL, 0, NULL},
 };
 

@@ -56,3 +56,10 @@ def number_summary(numbers: np.ndarray, candidates: np.ndarray | None = None) ->
 def hll_add(registers: np.ndarray, precision: int, hashes: np.ndarray) -> None:
     """Add uint64 ``hashes`` to the ``2**precision`` uint8 HyperLogLog ``registers``."""
     _kernels.hll_add(registers, precision, np.ascontiguousarray(hashes, dtype=np.uint64))
+
+
+def hll_add_numbers(registers: np.ndarray, precision: int, values: np.ndarray, seed: int) -> None:
+    """Add float64 ``values`` (NaN skipped) to the registers, each hashed as
+    ``worker.profiling.columns.distinct.hash_numbers`` hashes it with ``seed``."""
+    x = np.ascontiguousarray(values, dtype=np.float64).reshape(-1)
+    _kernels.hll_add_numbers(registers, precision, x, seed)

@@ -5,7 +5,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from worker.profiling.native import hll_add, number_summary
+from worker.profiling.columns.distinct import _SEED, hash_numbers
+from worker.profiling.native import hll_add, hll_add_numbers, number_summary
 
 CANDIDATES = np.array([-9999.0, -999.0, -99.0, 0.0, 0.5, 999.0, 9999.0])
 
@@ -85,3 +86,15 @@ def test_hll_refuses_short_registers_and_bad_precision() -> None:
         hll_add(np.zeros(10, dtype=np.uint8), 14, np.ones(3, dtype=np.uint64))
     with pytest.raises(ValueError, match="precision"):
         hll_add(np.zeros(1 << 4, dtype=np.uint8), 2, np.ones(3, dtype=np.uint64))
+
+
+def test_numbers_added_in_one_pass_hash_as_the_distinct_counts_hash_them() -> None:
+    # The same registers whether the numbers are hashed in numpy first or in the pass.
+    rng = np.random.default_rng(4)
+    values = np.concatenate([rng.normal(0, 1e3, 30_000).round(2), [0.0, -0.0, np.nan]])
+    one_pass = np.zeros(1 << 14, dtype=np.uint8)
+    hll_add_numbers(one_pass, 14, values, _SEED)
+    two_steps = np.zeros(1 << 14, dtype=np.uint8)
+    hll_add(two_steps, 14, hash_numbers(values[~np.isnan(values)]))
+    assert (one_pass == two_steps).all()
+    assert one_pass.any()
