@@ -1,4 +1,8 @@
-"""pyarrow's probe for pandas: skipped in a profiling process, pandas still at hand."""
+"""pyarrow's probe for pandas: skipped in a profiling process, pandas still at hand.
+
+A profiling process loads neither pandas nor polars (each costs a tenth of a second
+or more at start-up, holding the interpreter lock) unless something asks for them.
+"""
 
 import json
 import subprocess
@@ -25,13 +29,15 @@ def _run(script: str, tmp_path: Path) -> dict:
     return json.loads(done.stdout.strip().splitlines()[-1])
 
 
-def test_profiling_a_file_does_not_import_pandas(tmp_path):
-    # Invented intake: a number column with a word, labels, a date and a blank cell.
+def test_profiling_a_file_imports_neither_pandas_nor_polars(tmp_path):
+    # Invented intake: a number column with a missing token and a word, labels, a date
+    # and a blank cell (the word sends the first numbers down the lenient parse).
     csv = tmp_path / "lots.csv"
+    weights = {7: "n/a", 9: "about 3"}
     csv.write_text(
         "lot,weight,grade,landed\n"
         + "".join(
-            f"L{i},{i * 1.5 if i != 7 else 'n/a'},{'AB'[i % 2]},2025-03-{i % 28 + 1:02d}\n"
+            f"L{i},{weights.get(i, i * 1.5)},{'AB'[i % 2]},2025-03-{i % 28 + 1:02d}\n"
             for i in range(200)
         )
         + "L200,,A,\n"
@@ -42,10 +48,12 @@ def test_profiling_a_file_does_not_import_pandas(tmp_path):
         from worker.profiling import profile_file
         profile = profile_file({str(csv)!r})
         during = "pandas" in sys.modules
+        polars = "polars" in sys.modules
         import pyarrow as pa
         frame = pa.table({{"a": [1, 2]}}).to_pandas()  # pyarrow imports pandas when needed
         print(json.dumps({{
             "during": during,
+            "polars": polars,
             "rows": profile["dataset"]["rows"],
             "kinds": [c["kind"] for c in profile["columns"]],
             "frame": type(frame).__name__,
@@ -55,6 +63,7 @@ def test_profiling_a_file_does_not_import_pandas(tmp_path):
         tmp_path,
     )
     assert seen["during"] is False
+    assert seen["polars"] is False
     assert seen["rows"] == 201
     assert seen["kinds"] == ["identifier", "numeric", "categorical", "datetime"]
     assert seen["frame"] == "DataFrame"

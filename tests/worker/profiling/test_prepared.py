@@ -98,3 +98,17 @@ def test_numbers_of_a_clean_label_column_equal_parsing_every_cell():
     nothing = pa.nulls(4, pa.string())
     batch = prepare_batch(pa.record_batch({"grade": nothing}), 0, plan)
     assert np.isnan(batch.numbers["grade"]).all()
+
+
+def test_numbers_among_words_parse_as_polars_lenient_cast_reads_them() -> None:
+    # Reference: polars' cast to Float64 with strict=False (null where not a number);
+    # non-finite results are NaN in both.
+    import polars as pl
+
+    cases = ["1", "-2.5", "+3", ".5", "5.", "1e3", "1.5E-2", "-.5e+1", "abc", "", None]
+    cases += ["1e", "e5", "1.2.3", "--1", "inf", "NaN", "1e400", "0x10", "1 000", "7"]
+    text = pa.array(cases)
+    ours = parse_numbers(text)
+    reference = pl.from_arrow(text).cast(pl.Float64, strict=False).to_numpy().astype(float)
+    reference[~np.isfinite(reference)] = np.nan
+    np.testing.assert_array_equal(ours, reference)
