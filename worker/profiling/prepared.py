@@ -20,6 +20,8 @@ import pyarrow as pa
 import pyarrow.compute as pc
 import pyarrow.types as pat
 
+from worker.profiling.native import parse_decimals
+
 
 @dataclass(frozen=True)
 class MissingCounts:
@@ -208,9 +210,16 @@ def _text_missing(
 def _clean_numbers(raw: pa.Array, plan: BatchPlan) -> np.ndarray | None:
     """Numbers of a text column when every present cell is a plain finite number, else None.
 
-    This fast path skips trimming and token checks: Arrow's cast refuses blanks,
-    whitespace and words, so a successful cast means there are none.
+    This fast path skips trimming and token checks: the compiled decimal parse
+    (``worker.profiling.native.parse_decimals``) and Arrow's cast both refuse
+    blanks, whitespace and words, so a successful parse means there are none.
+    The compiled parse takes plain decimals, exactly; text it does not take
+    (decimal commas, exponents past the fast path) goes to Arrow's cast.
     """
+    if plan.decimal == "." and not plan.thousands:
+        values = parse_decimals(raw)
+        if values is not None:
+            return values
     text = plain_number_text(raw, plan.decimal, plan.thousands)
     try:
         parsed = pc.cast(text, pa.float64())

@@ -3,10 +3,10 @@ and numpy buffers.
 
 The passes (``kernels.h``) read a batch once, with the interpreter lock released,
 where numpy would read it once per figure while holding the lock between calls:
-row hashes for duplicate rows and distinct counts, the sums behind the
-co-moments, per-label moments and label-pair counts, each numeric column's
-moments and counts, and HyperLogLog register updates. They are built by pip
-when the project is installed.
+plain decimals parsed from text, row hashes for duplicate rows and distinct
+counts, the sums behind the co-moments, per-label moments and label-pair
+counts, each numeric column's moments and counts, and HyperLogLog register
+updates. They are built by pip when the project is installed.
 """
 
 from worker.profiling.native.numbers import (
@@ -15,6 +15,7 @@ from worker.profiling.native.numbers import (
     hll_add_numbers,
     number_summary,
 )
+from worker.profiling.native.parse import parse_decimals
 from worker.profiling.native.relations import RelationSums, relation_sums
 from worker.profiling.native.rowhash import row_hashes
 
@@ -24,6 +25,7 @@ __all__ = [
     "hll_add",
     "hll_add_numbers",
     "number_summary",
+    "parse_decimals",
     "relation_sums",
     "row_hashes",
 ]

@@ -97,4 +97,8 @@ void hll_add(uint8_t *registers, int precision, const uint64_t *hashes, int64_t 
 void hll_add_numbers(uint8_t *registers, int precision, const double *values, int64_t count,
                      uint64_t seed);
 
+/* Parses each text cell of a column as a decimal number into out (NaN for a null);
+ * returns rows, or the first row it cannot parse exactly (parse.c), where it stops. */
+int64_t parse_decimals(const column_layout *column, int64_t rows, double *out);
+
 #endif

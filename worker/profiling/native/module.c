@@ -8,6 +8,7 @@
  */
 #define PY_SSIZE_T_CLEAN
 #include <Python.h>
+#include <string.h>
 
 #include "kernels.h"
 
@@ -24,6 +25,65 @@ static int get_buffer(PyObject *obj, Py_buffer *view, Py_ssize_t need, int writa
     return 1;
 }
 
+/* A column's buffers, held while a pass reads them. */
+typedef struct {
+    Py_buffer validity, offsets, data;
+    column_layout layout;
+} held_column;
+
+static void release_column(held_column *held) {
+    if (held->data.obj != NULL) PyBuffer_Release(&held->data);
+    if (held->offsets.obj != NULL) PyBuffer_Release(&held->offsets);
+    if (held->validity.obj != NULL) PyBuffer_Release(&held->validity);
+}
+
+/* Takes and checks one column's buffers; 0 with an exception set (nothing held) if bad. */
+static int hold_column(held_column *held, Py_ssize_t rows, PyObject *validity_obj,
+                       Py_ssize_t validity_offset, PyObject *offsets_obj, int offset_bits,
+                       PyObject *data_obj, Py_ssize_t width) {
+    memset(held, 0, sizeof(*held));
+    if (rows < 0 || validity_offset < 0 || width < 0 ||
+        (offset_bits != 0 && offset_bits != 32 && offset_bits != 64)) {
+        PyErr_SetString(PyExc_ValueError, "bad column layout");
+        return 0;
+    }
+    int has_validity = validity_obj != Py_None, has_offsets = offset_bits != 0;
+    int ok = !has_validity || get_buffer(validity_obj, &held->validity,
+                                         (validity_offset + rows + 7) / 8, 0, "validity");
+    ok = ok && (!has_offsets || get_buffer(offsets_obj, &held->offsets,
+                                           (rows + 1) * (offset_bits / 8), 0, "offsets"));
+    ok = ok && get_buffer(data_obj, &held->data, has_offsets ? 0 : rows * width, 0, "data");
+    if (ok && has_offsets && rows > 0) {
+        /* Every cell must lie inside the data buffer: offsets ascend, so the ends tell. */
+        int64_t first, last;
+        if (offset_bits == 32) {
+            first = ((const int32_t *)held->offsets.buf)[0];
+            last = ((const int32_t *)held->offsets.buf)[rows];
+        } else {
+            first = ((const int64_t *)held->offsets.buf)[0];
+            last = ((const int64_t *)held->offsets.buf)[rows];
+        }
+        if (first < 0 || last < first || last > held->data.len) {
+            PyErr_SetString(PyExc_ValueError, "offsets point outside the data");
+            ok = 0;
+        }
+    }
+    if (!ok) {
+        release_column(held);
+        return 0;
+    }
+    held->layout = (column_layout){
+        .validity = has_validity ? held->validity.buf : NULL,
+        .validity_offset = validity_offset,
+        .offsets = has_offsets ? held->offsets.buf : NULL,
+        .offset_bits = offset_bits,
+        .data = held->data.buf,
+        .data_length = held->data.len,
+        .width = width,
+    };
+    return 1;
+}
+
 static PyObject *hash_column(PyObject *self, PyObject *args) {
     (void)self;
     PyObject *out_obj, *validity_obj, *offsets_obj, *data_obj;
@@ -33,54 +93,49 @@ static PyObject *hash_column(PyObject *self, PyObject *args) {
     if (!PyArg_ParseTuple(args, "OnOnOiOnK", &out_obj, &rows, &validity_obj, &validity_offset,
                           &offsets_obj, &offset_bits, &data_obj, &width, &seed))
         return NULL;
-    if (rows < 0 || validity_offset < 0 || width < 0 ||
-        (offset_bits != 0 && offset_bits != 32 && offset_bits != 64)) {
-        PyErr_SetString(PyExc_ValueError, "bad column layout");
+    Py_buffer out;
+    if (!get_buffer(out_obj, &out, rows * 8, 1, "the row hashes")) return NULL;
+    held_column held;
+    if (!hold_column(&held, rows, validity_obj, validity_offset, offsets_obj, offset_bits,
+                     data_obj, width)) {
+        PyBuffer_Release(&out);
         return NULL;
     }
-    Py_buffer out, validity = {0}, offsets = {0}, data = {0};
-    if (!get_buffer(out_obj, &out, rows * 8, 1, "the row hashes")) return NULL;
-    int has_validity = validity_obj != Py_None, has_offsets = offset_bits != 0;
-    int ok = !has_validity ||
-             get_buffer(validity_obj, &validity, (validity_offset + rows + 7) / 8, 0, "validity");
-    ok = ok && (!has_offsets ||
-                get_buffer(offsets_obj, &offsets, (rows + 1) * (offset_bits / 8), 0, "offsets"));
-    ok = ok && get_buffer(data_obj, &data, has_offsets ? 0 : rows * width, 0, "data");
-    if (ok && has_offsets && rows > 0) {
-        /* Every cell must lie inside the data buffer: offsets ascend, so the ends tell. */
-        int64_t first, last;
-        if (offset_bits == 32) {
-            first = ((const int32_t *)offsets.buf)[0];
-            last = ((const int32_t *)offsets.buf)[rows];
-        } else {
-            first = ((const int64_t *)offsets.buf)[0];
-            last = ((const int64_t *)offsets.buf)[rows];
-        }
-        if (first < 0 || last < first || last > data.len) {
-            PyErr_SetString(PyExc_ValueError, "offsets point outside the data");
-            ok = 0;
-        }
-    }
-    if (ok) {
-        column_layout column = {
-            .validity = has_validity ? validity.buf : NULL,
-            .validity_offset = validity_offset,
-            .offsets = has_offsets ? offsets.buf : NULL,
-            .offset_bits = offset_bits,
-            .data = data.buf,
-            .data_length = data.len,
-            .width = width,
-        };
-        Py_BEGIN_ALLOW_THREADS
-        row_hash_column(out.buf, rows, &column, seed);
-        Py_END_ALLOW_THREADS
-    }
-    if (data.obj != NULL) PyBuffer_Release(&data);
-    if (offsets.obj != NULL) PyBuffer_Release(&offsets);
-    if (validity.obj != NULL) PyBuffer_Release(&validity);
+    Py_BEGIN_ALLOW_THREADS
+    row_hash_column(out.buf, rows, &held.layout, seed);
+    Py_END_ALLOW_THREADS
+    release_column(&held);
     PyBuffer_Release(&out);
-    if (!ok) return NULL;
     Py_RETURN_NONE;
+}
+
+static PyObject *parse_decimals_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *out_obj, *validity_obj, *offsets_obj, *data_obj;
+    Py_ssize_t rows, validity_offset;
+    int offset_bits;
+    if (!PyArg_ParseTuple(args, "OnOnOiO", &out_obj, &rows, &validity_obj, &validity_offset,
+                          &offsets_obj, &offset_bits, &data_obj))
+        return NULL;
+    if (offset_bits == 0) {
+        PyErr_SetString(PyExc_ValueError, "decimals are parsed from text");
+        return NULL;
+    }
+    Py_buffer out;
+    if (!get_buffer(out_obj, &out, rows * 8, 1, "the numbers")) return NULL;
+    held_column held;
+    if (!hold_column(&held, rows, validity_obj, validity_offset, offsets_obj, offset_bits,
+                     data_obj, 0)) {
+        PyBuffer_Release(&out);
+        return NULL;
+    }
+    int64_t parsed;
+    Py_BEGIN_ALLOW_THREADS
+    parsed = parse_decimals(&held.layout, rows, out.buf);
+    Py_END_ALLOW_THREADS
+    release_column(&held);
+    PyBuffer_Release(&out);
+    return PyLong_FromLongLong(parsed);
 }
 
 static PyObject *hash_finish(PyObject *self, PyObject *args) {
@@ -295,6 +350,10 @@ static PyMethodDef methods[] = {
     {"hash_column", hash_column, METH_VARARGS,
      "hash_column(out, rows, validity, validity_offset, offsets, offset_bits, data, width, "
      "seed): mix one column's cells into the uint64 row hashes in out."},
+    {"parse_decimals", parse_decimals_of, METH_VARARGS,
+     "parse_decimals(out, rows, validity, validity_offset, offsets, offset_bits, data): parse "
+     "text cells as decimals into the float64 out (NaN for null); the rows parsed, all of "
+     "them unless a cell cannot be parsed exactly, where it stops."},
     {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
     {"relation_sums", relation_sums_of, METH_VARARGS,
      "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "

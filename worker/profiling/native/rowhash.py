@@ -13,6 +13,7 @@ import pyarrow as pa
 import pyarrow.types as pat
 
 from worker.profiling.native import _kernels
+from worker.profiling.native.layout import bitmap, offset_bits, text_layout
 
 _MASK = (1 << 64) - 1
 _GOLDEN = 0x9E3779B97F4A7C15  # spreads the column positions over the seeds
@@ -35,18 +36,15 @@ def row_hashes(batch: pa.RecordBatch, seed: int) -> np.ndarray:
 def _layout(column: pa.Array) -> tuple[object, object, int, object, int]:
     """(validity bitmap, offsets, offset bits, data, width) of one column, as buffers."""
     kind = column.type
-    bits = _offset_bits(kind)
-    if bits:
-        validity, offsets, data = column.buffers()[:3]
-        window = np.frombuffer(offsets, dtype=np.int64 if bits == 64 else np.int32)
-        window = window[column.offset : column.offset + len(column) + 1]
-        return _bitmap(column, validity), window, bits, data if data is not None else b"", 0
+    if offset_bits(kind):
+        validity, offsets, bits, data = text_layout(column)
+        return validity, offsets, bits, data, 0
     if _fixed_width(kind):
         validity, values = column.buffers()[:2]
         width = kind.bit_width // 8
         start = column.offset * width
         data = np.frombuffer(values, dtype=np.uint8)[start : start + len(column) * width]
-        return _bitmap(column, validity), None, 0, data, width
+        return bitmap(column, validity), None, 0, data, width
     import polars as pl
 
     from worker.profiling.prepared import as_string_view
@@ -55,19 +53,6 @@ def _layout(column: pa.Array) -> tuple[object, object, int, object, int]:
     assert isinstance(series, pl.Series)
     cells = np.ascontiguousarray(series.hash(seed=0).to_numpy(), dtype=np.uint64)
     return None, None, 0, cells.view(np.uint8), 8
-
-
-def _bitmap(column: pa.Array, validity: pa.Buffer | None) -> pa.Buffer | None:
-    return validity if column.null_count and validity is not None else None
-
-
-def _offset_bits(kind: pa.DataType) -> int:
-    """32 or 64 for text and bytes (the width of their offsets), else 0."""
-    if pat.is_string(kind) or pat.is_binary(kind):
-        return 32
-    if pat.is_large_string(kind) or pat.is_large_binary(kind):
-        return 64
-    return 0
 
 
 def _fixed_width(kind: pa.DataType) -> bool:

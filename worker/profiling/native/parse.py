@@ -1,0 +1,21 @@
+"""Decimal text parsed by the compiled pass in ``parse.c`` where the result is exact."""
+
+from __future__ import annotations
+
+import numpy as np
+import pyarrow as pa
+
+from worker.profiling.native import _kernels
+from worker.profiling.native.layout import offset_bits, text_layout
+
+
+def parse_decimals(column: pa.Array) -> np.ndarray | None:
+    """float64 values of a text column of plain decimals (NaN where null), or None when
+    a cell is not one (a word, a blank, a thousands separator, more than 19 digits):
+    the caller then parses the column the general way."""
+    if not offset_bits(column.type):
+        return None
+    validity, offsets, bits, data = text_layout(column)
+    out = np.empty(len(column))
+    parsed = _kernels.parse_decimals(out, len(column), validity, column.offset, offsets, bits, data)
+    return out if parsed == len(column) else None
