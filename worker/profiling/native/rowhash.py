@@ -3,7 +3,8 @@
 Text columns are hashed from Arrow's own offsets and bytes, fixed-width columns
 (numbers, dates and times of Parquet input) from their values' bytes; any other
 type is first turned into one 64-bit hash per cell by polars. A null cell has a
-hash of its own, the same in every row of a column.
+hash of its own, the same in every row of a column whatever the column's type
+(a chunk whose column holds only nulls may come typed as null).
 """
 
 from __future__ import annotations
@@ -49,10 +50,13 @@ def _layout(column: pa.Array) -> tuple[object, object, int, object, int]:
 
     from worker.profiling.prepared import as_string_view
 
+    if pat.is_null(kind):  # every cell null: a bitmap of zeros
+        return bytes((column.offset + len(column) + 7) // 8), None, 0, b"", 0
     series = pl.from_arrow(as_string_view(column))
     assert isinstance(series, pl.Series)
     cells = np.ascontiguousarray(series.hash(seed=0).to_numpy(), dtype=np.uint64)
-    return None, None, 0, cells.view(np.uint8), 8
+    # The column's own bitmap, so a null hashes as a null of any other type does.
+    return bitmap(column, column.buffers()[0]), None, 0, cells.view(np.uint8), 8
 
 
 def _fixed_width(kind: pa.DataType) -> bool:
