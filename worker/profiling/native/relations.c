@@ -111,31 +111,36 @@ static void pair_sums(const relation_input *in, const relation_sums *out, int64_
     }
 }
 
-/* Per-label sums: the block's values row by row (zr, row-major) added to each label's row. */
+/* Per-label sums: the block's values row by row (zr, row-major) added to each label's
+ * row. The counts are not kept per value: each label's rows are counted (labels) and
+ * the numeric column's missing rows with that label taken off afterwards (gn). */
 static void group_sums(const relation_input *in, const relation_sums *out, int64_t start,
-                       int64_t rows, const double *restrict z, const unsigned char *restrict ok,
-                       double *restrict zr, int64_t *restrict okr) {
+                       int64_t rows, const double *restrict z, double *restrict zr,
+                       int64_t *restrict labels, const int32_t *restrict missing,
+                       const int64_t *restrict missing_count) {
     const int p = in->p;
     for (int i = 0; i < p; i++)
-        for (int64_t r = 0; r < rows; r++) {
-            zr[(size_t)r * p + i] = z[(size_t)i * BLOCK + r];
-            okr[(size_t)r * p + i] = ok[(size_t)i * BLOCK + r];
-        }
+        for (int64_t r = 0; r < rows; r++) zr[(size_t)r * p + i] = z[(size_t)i * BLOCK + r];
     for (int l = 0; l < in->k; l++) {
         const int64_t *restrict codes = in->codes[l] + start;
         const int64_t size = in->sizes[l], base = in->bases[l];
         for (int64_t r = 0; r < rows; r++) {
             int64_t code = codes[r];
             if (code < 0 || code >= size) continue;
+            labels[base + code]++;
             size_t at = (size_t)(base + code) * p;
-            int64_t *restrict gn = out->gn + at;
             double *restrict gs = out->gs + at, *restrict gq = out->gq + at;
             const double *restrict v = zr + (size_t)r * p;
-            const int64_t *restrict present = okr + (size_t)r * p;
             for (int i = 0; i < p; i++) {
-                gn[i] += present[i];
                 gs[i] += v[i];
                 gq[i] += v[i] * v[i];
+            }
+        }
+        for (int j = 0; j < p; j++) {
+            const int32_t *restrict list = missing + (size_t)j * BLOCK;
+            for (int64_t m = 0; m < missing_count[j]; m++) {
+                int64_t code = codes[list[m]];
+                if (code >= 0 && code < size) out->gn[(size_t)(base + code) * p + j]--;
             }
         }
     }
@@ -162,25 +167,30 @@ int relation_batch(const relation_input *in, relation_sums *out) {
     double *z = malloc(sizeof(double) * width * BLOCK);
     double *zr = malloc(sizeof(double) * width * BLOCK);
     unsigned char *ok = malloc(width * BLOCK);
-    int64_t *okr = malloc(sizeof(int64_t) * width * BLOCK);
+    int64_t label_count = in->k > 0 ? in->bases[in->k - 1] + in->sizes[in->k - 1] : 0;
+    int64_t *labels = calloc((size_t)(label_count > 0 ? label_count : 1), sizeof(int64_t));
     int32_t *missing = malloc(sizeof(int32_t) * width * BLOCK);
     int64_t *missing_count = malloc(sizeof(int64_t) * width);
     int status = -1;
-    if (z && zr && ok && okr && missing && missing_count) {
+    if (z && zr && ok && labels && missing && missing_count) {
         column_shifts(in, out->shift);
         for (int64_t start = 0; start < in->rows; start += BLOCK) {
             int64_t rows = in->rows - start < BLOCK ? in->rows - start : BLOCK;
             load_block(in, out, start, rows, z, ok, missing, missing_count);
             pair_sums(in, out, rows, z, ok, missing, missing_count);
-            if (in->k > 0 && in->p > 0) group_sums(in, out, start, rows, z, ok, zr, okr);
+            if (in->k > 0 && in->p > 0)
+                group_sums(in, out, start, rows, z, zr, labels, missing, missing_count);
             pair_counts(in, out, start, rows);
         }
+        /* Each label's rows, less (already taken off) its rows missing the column. */
+        for (int64_t label = 0; label < label_count; label++)
+            for (int i = 0; i < in->p; i++) out->gn[(size_t)label * in->p + i] += labels[label];
         status = 0;
     }
     free(z);
     free(zr);
     free(ok);
-    free(okr);
+    free(labels);
     free(missing);
     free(missing_count);
     return status;
