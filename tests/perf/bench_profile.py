@@ -184,6 +184,10 @@ def main() -> int:
     if not args.skip_pandas:
         runs["pandas"] = measure("pandas", args.rows, [PYTHON, "-c", NAIVE_PANDAS, str(big)])
 
+    failed = [run.name for run in runs.values() if run.exit_code != 0]
+    if failed:
+        # A run that failed measured nothing: no ratio is printed from it.
+        raise SystemExit(f"failed runs: {', '.join(failed)}; no ratios")
     floor, profile, small_profile = runs["floor"], runs["profile"], runs["profile_small"]
     print("ratios:")
     ratio("profile / floor time", profile.seconds / floor.seconds, "<= 2.5", 2.5, below=True)

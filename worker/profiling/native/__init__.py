@@ -17,7 +17,7 @@ from worker.profiling.native.numbers import (
 )
 from worker.profiling.native.parse import parse_decimals
 from worker.profiling.native.relations import RelationSums, relation_sums
-from worker.profiling.native.rowhash import row_hashes
+from worker.profiling.native.rowhash import partition_by_top_bits, row_hashes, row_keys
 
 __all__ = [
     "NumberSummary",
@@ -26,6 +26,8 @@ __all__ = [
     "hll_add_numbers",
     "number_summary",
     "parse_decimals",
+    "partition_by_top_bits",
     "relation_sums",
     "row_hashes",
+    "row_keys",
 ]

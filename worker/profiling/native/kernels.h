@@ -37,6 +37,16 @@ void row_hash_column(uint64_t *h, int64_t rows, const column_layout *column, uin
 /* Ends the row hashes (a final avalanche, so every input bit reaches every output bit). */
 void row_hash_finish(uint64_t *h, int64_t rows);
 
+/* Groups count hashes by their top bits (1 <= bits <= 8): slice v is sorted[bounds[v] ..
+ * bounds[v + 1]), the hashes of that slice in row order, positions[i] the row of
+ * sorted[i]; bounds holds 2^bits + 1 entries. */
+void partition_by_top_bits(const uint64_t *hashes, int64_t count, int bits, uint64_t *sorted,
+                           uint32_t *positions, int64_t *bounds);
+
+/* keys[i] = SplitMix64 of row number start + i (plus seed): a uniform 64-bit key per row
+ * that does not depend on how the table was cut into batches (Steele, Lea & Flood 2014). */
+void row_keys(int64_t start, int64_t count, uint64_t seed, uint64_t *keys);
+
 /* Sums of one batch for the co-moments of p numeric columns and the per-label moments.
  *
  * x[i][r] is column i's value in row r, NaN (or any non-finite value) where missing.

@@ -151,6 +151,53 @@ static PyObject *hash_finish(PyObject *self, PyObject *args) {
     Py_RETURN_NONE;
 }
 
+static PyObject *partition_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *hashes_obj, *sorted_obj, *positions_obj, *bounds_obj;
+    int bits;
+    if (!PyArg_ParseTuple(args, "OiOOO", &hashes_obj, &bits, &sorted_obj, &positions_obj,
+                          &bounds_obj))
+        return NULL;
+    if (bits < 1 || bits > 8) {
+        PyErr_SetString(PyExc_ValueError, "bits must be 1 to 8");
+        return NULL;
+    }
+    Py_buffer hashes, sorted = {0}, positions = {0}, bounds = {0};
+    if (!get_buffer(hashes_obj, &hashes, 0, 0, "the hashes")) return NULL;
+    Py_ssize_t count = hashes.len / 8;
+    int ok = count <= (Py_ssize_t)UINT32_MAX;
+    if (!ok) PyErr_SetString(PyExc_ValueError, "too many hashes for 32-bit positions");
+    ok = ok && get_buffer(sorted_obj, &sorted, count * 8, 1, "the sorted hashes");
+    ok = ok && get_buffer(positions_obj, &positions, count * 4, 1, "the positions");
+    ok = ok && get_buffer(bounds_obj, &bounds, (((Py_ssize_t)1 << bits) + 1) * 8, 1, "bounds");
+    if (ok) {
+        Py_BEGIN_ALLOW_THREADS
+        partition_by_top_bits(hashes.buf, count, bits, sorted.buf, positions.buf, bounds.buf);
+        Py_END_ALLOW_THREADS
+    }
+    if (bounds.obj != NULL) PyBuffer_Release(&bounds);
+    if (positions.obj != NULL) PyBuffer_Release(&positions);
+    if (sorted.obj != NULL) PyBuffer_Release(&sorted);
+    PyBuffer_Release(&hashes);
+    if (!ok) return NULL;
+    Py_RETURN_NONE;
+}
+
+static PyObject *row_keys_of(PyObject *self, PyObject *args) {
+    (void)self;
+    long long start;
+    unsigned long long seed;
+    PyObject *keys_obj;
+    if (!PyArg_ParseTuple(args, "LKO", &start, &seed, &keys_obj)) return NULL;
+    Py_buffer keys;
+    if (!get_buffer(keys_obj, &keys, 0, 1, "the keys")) return NULL;
+    Py_BEGIN_ALLOW_THREADS
+    row_keys(start, keys.len / 8, seed, keys.buf);
+    Py_END_ALLOW_THREADS
+    PyBuffer_Release(&keys);
+    Py_RETURN_NONE;
+}
+
 /* Buffers of a sequence of arrays, each of at least `need` bytes; the count taken, or -1. */
 static Py_ssize_t get_buffers(PyObject *seq, Py_buffer *views, Py_ssize_t count,
                               Py_ssize_t need, const char *what) {
@@ -354,6 +401,12 @@ static PyMethodDef methods[] = {
      "parse_decimals(out, rows, validity, validity_offset, offsets, offset_bits, data): parse "
      "text cells as decimals into the float64 out (NaN for null); the rows parsed, all of "
      "them unless a cell cannot be parsed exactly, where it stops."},
+    {"partition_by_top_bits", partition_of, METH_VARARGS,
+     "partition_by_top_bits(hashes, bits, sorted, positions, bounds): group uint64 hashes "
+     "by their top bits, rows in order within a group (uint32 positions, int64 bounds)."},
+    {"row_keys", row_keys_of, METH_VARARGS,
+     "row_keys(start, seed, keys): fill the uint64 keys with SplitMix64 of the row numbers "
+     "from start."},
     {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
     {"relation_sums", relation_sums_of, METH_VARARGS,
      "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "

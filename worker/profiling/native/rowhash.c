@@ -100,3 +100,31 @@ void row_hash_column(uint64_t *h, int64_t rows, const column_layout *c, uint64_t
 void row_hash_finish(uint64_t *h, int64_t rows) {
     for (int64_t r = 0; r < rows; r++) h[r] = avalanche(h[r]);
 }
+
+void partition_by_top_bits(const uint64_t *restrict hashes, int64_t count, int bits,
+                           uint64_t *restrict sorted, uint32_t *restrict positions,
+                           int64_t *restrict bounds) {
+    const int64_t slices = (int64_t)1 << bits;
+    const int shift = 64 - bits;
+    for (int64_t v = 0; v <= slices; v++) bounds[v] = 0;
+    for (int64_t i = 0; i < count; i++) bounds[(hashes[i] >> shift) + 1]++;
+    for (int64_t v = 0; v < slices; v++) bounds[v + 1] += bounds[v];
+    /* A counting sort: each slice's next free place, rows in order within it. */
+    int64_t next[1 << 8];
+    for (int64_t v = 0; v < slices; v++) next[v] = bounds[v];
+    for (int64_t i = 0; i < count; i++) {
+        int64_t at = next[hashes[i] >> shift]++;
+        sorted[at] = hashes[i];
+        positions[at] = (uint32_t)i;
+    }
+}
+
+void row_keys(int64_t start, int64_t count, uint64_t seed, uint64_t *restrict keys) {
+    for (int64_t i = 0; i < count; i++) {
+        uint64_t z = (uint64_t)(start + i) + seed;
+        z = z * 0x9E3779B97F4A7C15ULL + 0x9E3779B97F4A7C15ULL;
+        z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
+        z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
+        keys[i] = z ^ (z >> 31);
+    }
+}

@@ -67,3 +67,24 @@ def _fixed_width(kind: pa.DataType) -> bool:
         return False
     plain = pat.is_integer(kind) or pat.is_floating(kind) or pat.is_temporal(kind)
     return (plain or pat.is_decimal(kind) or pat.is_fixed_size_binary(kind)) and bits % 8 == 0
+
+
+def partition_by_top_bits(
+    hashes: np.ndarray, bits: int
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The hashes grouped by their top ``bits`` bits, rows in order within each group:
+    (grouped hashes, each one's row as uint32, the 2**bits + 1 group bounds)."""
+    values = np.ascontiguousarray(hashes, dtype=np.uint64)
+    grouped = np.empty_like(values)
+    positions = np.empty(len(values), dtype=np.uint32)
+    bounds = np.empty((1 << bits) + 1, dtype=np.int64)
+    _kernels.partition_by_top_bits(values, bits, grouped, positions, bounds)
+    return grouped, positions, bounds
+
+
+def row_keys(start: int, count: int, seed: int = 0) -> np.ndarray:
+    """SplitMix64 of the row numbers ``start .. start + count - 1`` (plus ``seed``):
+    uniform 64-bit keys that depend on the row number alone."""
+    keys = np.empty(count, dtype=np.uint64)
+    _kernels.row_keys(start, seed, keys)
+    return keys

@@ -183,11 +183,10 @@ class _Part:
 
     @classmethod
     def of(cls, offset: int, hashes: np.ndarray) -> _Part:
-        tops = (hashes >> np.uint64(64 - _SLICE_BITS)).astype(np.uint8)
-        order = np.argsort(tops, kind="stable")  # a radix sort of one byte
-        width = np.uint16 if len(hashes) <= 1 << 16 else np.uint32
-        bounds = np.concatenate([[0], np.cumsum(np.bincount(tops, minlength=1 << _SLICE_BITS))])
-        return cls(offset, hashes[order], order.astype(width), bounds)
+        grouped, positions, bounds = native.partition_by_top_bits(hashes, _SLICE_BITS)
+        if len(hashes) <= 1 << 16:
+            positions = positions.astype(np.uint16)  # half the memory kept per row
+        return cls(offset, grouped, positions, bounds)
 
     def slice(self, value: int) -> np.ndarray:
         return self.hashes[self.bounds[value] : self.bounds[value + 1]]

@@ -1,10 +1,11 @@
 """A mergeable uniform sample of rows: the k rows with the smallest random keys.
 
 Every row gets a pseudo-random 64-bit key, a hash of its row number
-(splitmix64), so the key of a row does not depend on how the file was cut into
-batches or chunks. The sample keeps the k rows with the smallest keys; merging
-two samples keeps the k smallest keys of the union, which is the sample one
-pass would have kept (bottom-k sampling). While the table has at most k rows
+(splitmix64, ``worker.profiling.native.row_keys``), so the key of a row does
+not depend on how the file was cut into batches or chunks. The sample keeps
+the k rows with the smallest keys; merging two samples keeps the k smallest
+keys of the union, which is the sample one pass would have kept (bottom-k
+sampling). While the table has at most k rows
 the sample holds every row and statistics on it are exact.
 
 References: Cohen & Kaplan (2007), "Summarizing data using bottom-k sketches",
@@ -18,19 +19,7 @@ from collections.abc import Mapping
 
 import numpy as np
 
-_GOLDEN = np.uint64(0x9E3779B97F4A7C15)
-_MIX1 = np.uint64(0xBF58476D1CE4E5B9)
-_MIX2 = np.uint64(0x94D049BB133111EB)
-
-
-def row_keys(start: int, count: int, seed: int = 0) -> np.ndarray:
-    """splitmix64 of the row numbers start..start+count-1: uniform 64-bit keys."""
-    with np.errstate(over="ignore"):
-        z = np.arange(start, start + count, dtype=np.uint64) + np.uint64(seed)
-        z = z * _GOLDEN + _GOLDEN
-        z = (z ^ (z >> np.uint64(30))) * _MIX1
-        z = (z ^ (z >> np.uint64(27))) * _MIX2
-        return z ^ (z >> np.uint64(31))
+from worker.profiling.native import row_keys
 
 
 class RowSample:

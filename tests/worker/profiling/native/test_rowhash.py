@@ -9,7 +9,7 @@ import pandas as pd
 import pyarrow as pa
 import pytest
 
-from worker.profiling.native import _kernels, row_hashes
+from worker.profiling.native import _kernels, partition_by_top_bits, row_hashes, row_keys
 
 SEED = 0x7D3A
 
@@ -123,3 +123,32 @@ def test_a_null_hashes_alike_whatever_the_column_type() -> None:
     assert text[1] == untyped[0] == labels[0] == flags[0] != text[0]
     sliced = pa.record_batch({"x": pa.array(["b", "a"]), "y": pa.nulls(2)}).slice(1)
     assert row_hashes(sliced, SEED)[0] == untyped[0]
+
+
+def splitmix_keys(start: int, count: int) -> np.ndarray:
+    """The row keys written in numpy: splitmix64 of each row number (Steele, Lea & Flood
+    2014, the generator's step then its finaliser)."""
+    golden = np.uint64(0x9E3779B97F4A7C15)
+    with np.errstate(over="ignore"):
+        z = np.arange(start, start + count, dtype=np.uint64) * golden + golden
+        z = (z ^ (z >> np.uint64(30))) * np.uint64(0xBF58476D1CE4E5B9)
+        z = (z ^ (z >> np.uint64(27))) * np.uint64(0x94D049BB133111EB)
+        return z ^ (z >> np.uint64(31))
+
+
+def test_row_keys_are_splitmix64_of_the_row_numbers() -> None:
+    assert (row_keys(0, 1000) == splitmix_keys(0, 1000)).all()
+    assert (row_keys(12_345_678, 777) == splitmix_keys(12_345_678, 777)).all()
+    assert row_keys(5, 0).size == 0
+
+
+@pytest.mark.parametrize("count", [0, 1, 5000, 70_000])
+def test_hashes_grouped_by_top_bits_keep_rows_in_order(count) -> None:
+    hashes = np.random.default_rng(count).integers(0, 2**64, count, dtype=np.uint64)
+    grouped, positions, bounds = partition_by_top_bits(hashes, 4)
+    tops = hashes >> np.uint64(60)
+    order = np.argsort(tops, kind="stable")  # reference: numpy's stable sort by group
+    assert (grouped == hashes[order]).all()
+    assert (positions == order).all()
+    expected = np.concatenate([[0], np.cumsum(np.bincount(tops.astype(np.intp), minlength=16))])
+    assert (bounds == expected).all()
