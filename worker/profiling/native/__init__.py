@@ -15,13 +15,14 @@ from worker.profiling.native.numbers import (
     hll_add_numbers,
     number_summary,
 )
-from worker.profiling.native.parse import parse_decimals
+from worker.profiling.native.parse import bytes_are_ascii, parse_decimals
 from worker.profiling.native.relations import RelationSums, relation_sums
 from worker.profiling.native.rowhash import partition_by_top_bits, row_hashes, row_keys
 
 __all__ = [
     "NumberSummary",
     "RelationSums",
+    "bytes_are_ascii",
     "hll_add",
     "hll_add_numbers",
     "number_summary",

@@ -111,4 +111,7 @@ void hll_add_numbers(uint8_t *registers, int precision, const double *values, in
  * returns rows, or the first row it cannot parse exactly (parse.c), where it stops. */
 int64_t parse_decimals(const column_layout *column, int64_t rows, double *out);
 
+/* 1 when every byte of data is below 128 (ASCII text, hence valid UTF-8). */
+int bytes_are_ascii(const uint8_t *data, int64_t length);
+
 #endif

@@ -198,6 +198,20 @@ static PyObject *row_keys_of(PyObject *self, PyObject *args) {
     Py_RETURN_NONE;
 }
 
+static PyObject *ascii_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *data_obj;
+    if (!PyArg_ParseTuple(args, "O", &data_obj)) return NULL;
+    Py_buffer data;
+    if (!get_buffer(data_obj, &data, 0, 0, "the bytes")) return NULL;
+    int ascii;
+    Py_BEGIN_ALLOW_THREADS
+    ascii = bytes_are_ascii(data.buf, data.len);
+    Py_END_ALLOW_THREADS
+    PyBuffer_Release(&data);
+    return PyBool_FromLong(ascii);
+}
+
 /* Buffers of a sequence of arrays, each of at least `need` bytes; the count taken, or -1. */
 static Py_ssize_t get_buffers(PyObject *seq, Py_buffer *views, Py_ssize_t count,
                               Py_ssize_t need, const char *what) {
@@ -407,6 +421,8 @@ static PyMethodDef methods[] = {
     {"row_keys", row_keys_of, METH_VARARGS,
      "row_keys(start, seed, keys): fill the uint64 keys with SplitMix64 of the row numbers "
      "from start."},
+    {"bytes_are_ascii", ascii_of, METH_VARARGS,
+     "bytes_are_ascii(data): True when every byte is below 128."},
     {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
     {"relation_sums", relation_sums_of, METH_VARARGS,
      "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "

@@ -140,3 +140,22 @@ int64_t parse_decimals(const column_layout *c, int64_t rows, double *out) {
     }
     return rows;
 }
+
+VECTOR_CLONES
+int bytes_are_ascii(const uint8_t *restrict data, int64_t length) {
+    /* Eight lanes of 64-bit words ORed together, checked every 4 KB so a file of
+     * other text stops early. */
+    int64_t i = 0;
+    while (i + 4096 <= length) {
+        uint64_t seen = 0;
+        for (int64_t end = i + 4096; i < end; i += 8) {
+            uint64_t word;
+            memcpy(&word, data + i, 8);
+            seen |= word;
+        }
+        if (seen & 0x8080808080808080ULL) return 0;
+    }
+    uint8_t tail = 0;
+    for (; i < length; i++) tail |= data[i];
+    return (tail & 0x80) == 0;
+}

@@ -19,3 +19,8 @@ def parse_decimals(column: pa.Array) -> np.ndarray | None:
     out = np.empty(len(column))
     parsed = _kernels.parse_decimals(out, len(column), validity, column.offset, offsets, bits, data)
     return out if parsed == len(column) else None
+
+
+def bytes_are_ascii(data: object) -> bool:
+    """True when every byte of ``data`` (any buffer) is below 128: ASCII, so valid UTF-8."""
+    return bool(_kernels.bytes_are_ascii(data))

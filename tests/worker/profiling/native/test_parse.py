@@ -9,7 +9,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from worker.profiling.native import parse_decimals
+from worker.profiling.native import bytes_are_ascii, parse_decimals
 
 # Decimal strings of the grammar: sign, digits, a point, digits, an exponent.
 DECIMALS = st.builds(
@@ -95,3 +95,15 @@ def test_anything_else_is_refused(text) -> None:
 
 def test_text_columns_only() -> None:
     assert parse_decimals(pa.array([1, 2])) is None
+
+
+@pytest.mark.parametrize("length", [0, 1, 7, 4096, 4099, 100_000])
+def test_ascii_check_finds_any_byte_above_127(length) -> None:
+    # Reference: numpy's maximum over the same bytes.
+    data = bytearray(np.random.default_rng(length).integers(0, 128, length, dtype=np.uint8))
+    assert bytes_are_ascii(data) is True
+    for at in {0, length // 2, length - 1} if length else set():
+        changed = bytearray(data)
+        changed[at] = 0xC3
+        assert np.frombuffer(changed, np.uint8).max() >= 128
+        assert bytes_are_ascii(changed) is False
