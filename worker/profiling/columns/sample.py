@@ -1,23 +1,30 @@
 """A bounded uniform sample of a stream of numbers, mergeable (bottom-k by random keys).
 
-Every value gets an independent uniform key; the sample is the ``size`` values
-with the smallest keys, so the union of two samples cut to ``size`` is again a
-uniform sample of the union of their streams.
+Every value gets a uniform key; the sample is the ``size`` values with the
+smallest keys, so the union of two samples cut to ``size`` is again a uniform
+sample of the union of their streams.
 
-Once the sample is full, only keys below the largest key kept (τ) can enter.
-Rather than drawing a key for every value and comparing, a batch of b values
-draws how many enter, c ~ Binomial(b, τ), which of them (c positions chosen
-uniformly without replacement) and their keys (uniform below τ): the same
-distribution as iid uniform keys filtered by τ, at a cost that grows with the
-c entering values, not with b. Entering values are buffered and the buffer is
-cut back to ``size`` only when it holds twice as many.
+A value's key is SplitMix64 of its place in the state's stream (a counter,
+offset by the state's seed so that states with different seeds draw apart),
+which is as good as an independent uniform draw for sampling. Once the sample
+is full, only keys below the largest key kept (τ) can enter: one compiled pass
+over the batch keys every value and keeps those below τ, without the
+interpreter lock (``worker.profiling.native.sample_below``). Entering values
+are buffered and the buffer is cut back to ``size`` only when it holds twice
+as many.
 
-References: E. Cohen and H. Kaplan, "Summarizing data using bottom-k sketches", PODC 2007.
+References: E. Cohen and H. Kaplan, "Summarizing data using bottom-k sketches",
+PODC 2007; G. L. Steele, D. Lea and C. H. Flood, "Fast splittable pseudorandom
+number generators", OOPSLA 2014 (SplitMix64).
 """
 
 from __future__ import annotations
 
 import numpy as np
+
+from worker.profiling.native import sample_below
+
+_SEED_SHIFT = 40  # a seed's stream starts at seed * 2**40: streams never overlap
 
 
 class SampleState:
@@ -25,7 +32,8 @@ class SampleState:
 
     def __init__(self, size: int, seed: int = 0) -> None:
         self.size = size
-        self._rng = np.random.default_rng(seed)
+        self.seed = seed % (1 << (64 - _SEED_SHIFT))
+        self._drawn = 0  # values keyed so far
         self._keys: list[np.ndarray] = []
         self._values: list[np.ndarray] = []
         self._buffered = 0
@@ -45,14 +53,10 @@ class SampleState:
     def update(self, values: np.ndarray) -> None:
         if values.size == 0:
             return
-        if self._threshold == np.inf:
-            self._add(self._rng.random(values.size), values)
-            return
-        entering = int(self._rng.binomial(values.size, self._threshold))
-        if entering == 0:
-            return
-        positions = self._rng.choice(values.size, size=entering, replace=False)
-        self._add(self._rng.random(entering) * self._threshold, values[positions])
+        start = (self.seed << _SEED_SHIFT) + self._drawn
+        self._drawn += int(values.size)
+        keys, entering = sample_below(start, values, self._threshold)
+        self._add(keys, entering)
 
     def _add(self, keys: np.ndarray, values: np.ndarray) -> None:
         if keys.size == 0:
@@ -75,7 +79,7 @@ class SampleState:
         self._keys, self._values, self._buffered = [keys], [values], int(keys.size)
 
     def merge(self, other: SampleState) -> SampleState:
-        out = SampleState(self.size, seed=int(self._rng.integers(1 << 31)))
+        out = SampleState(self.size, seed=self.seed * 1_000_003 + other.seed + 1)
         out._add(
             np.concatenate([self.keys, other.keys]), np.concatenate([self.values, other.values])
         )

@@ -17,7 +17,12 @@ from worker.profiling.native.numbers import (
 )
 from worker.profiling.native.parse import bytes_are_ascii, parse_decimals
 from worker.profiling.native.relations import RelationSums, relation_sums
-from worker.profiling.native.rowhash import partition_by_top_bits, row_hashes, row_keys
+from worker.profiling.native.rowhash import (
+    partition_by_top_bits,
+    row_hashes,
+    row_keys,
+    sample_below,
+)
 
 __all__ = [
     "NumberSummary",
@@ -31,4 +36,5 @@ __all__ = [
     "relation_sums",
     "row_hashes",
     "row_keys",
+    "sample_below",
 ]

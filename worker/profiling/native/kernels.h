@@ -47,6 +47,12 @@ void partition_by_top_bits(const uint64_t *hashes, int64_t count, int bits, uint
  * that does not depend on how the table was cut into batches (Steele, Lea & Flood 2014). */
 void row_keys(int64_t start, int64_t count, uint64_t seed, uint64_t *keys);
 
+/* Gives value i the key u = SplitMix64(start + i) / 2^64 (53 bits, uniform in [0, 1))
+ * and keeps, in order, the values whose key is below threshold with their keys; returns
+ * how many. Each value enters independently with probability threshold. */
+int64_t sample_below(uint64_t start, const double *values, int64_t count, double threshold,
+                     double *keys, double *kept);
+
 /* Sums of one batch for the co-moments of p numeric columns and the per-label moments.
  *
  * x[i][r] is column i's value in row r, NaN (or any non-finite value) where missing.

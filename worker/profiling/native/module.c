@@ -212,6 +212,30 @@ static PyObject *ascii_of(PyObject *self, PyObject *args) {
     return PyBool_FromLong(ascii);
 }
 
+static PyObject *sample_below_of(PyObject *self, PyObject *args) {
+    (void)self;
+    unsigned long long start;
+    double threshold;
+    PyObject *values_obj, *keys_obj, *kept_obj;
+    if (!PyArg_ParseTuple(args, "KOdOO", &start, &values_obj, &threshold, &keys_obj, &kept_obj))
+        return NULL;
+    Py_buffer values, keys = {0}, kept = {0};
+    if (!get_buffer(values_obj, &values, 0, 0, "the values")) return NULL;
+    int ok = get_buffer(keys_obj, &keys, values.len, 1, "the keys");
+    ok = ok && get_buffer(kept_obj, &kept, values.len, 1, "the kept values");
+    int64_t taken = 0;
+    if (ok) {
+        Py_BEGIN_ALLOW_THREADS
+        taken = sample_below(start, values.buf, values.len / 8, threshold, keys.buf, kept.buf);
+        Py_END_ALLOW_THREADS
+    }
+    if (kept.obj != NULL) PyBuffer_Release(&kept);
+    if (keys.obj != NULL) PyBuffer_Release(&keys);
+    PyBuffer_Release(&values);
+    if (!ok) return NULL;
+    return PyLong_FromLongLong(taken);
+}
+
 /* Buffers of a sequence of arrays, each of at least `need` bytes; the count taken, or -1. */
 static Py_ssize_t get_buffers(PyObject *seq, Py_buffer *views, Py_ssize_t count,
                               Py_ssize_t need, const char *what) {
@@ -423,6 +447,9 @@ static PyMethodDef methods[] = {
      "from start."},
     {"bytes_are_ascii", ascii_of, METH_VARARGS,
      "bytes_are_ascii(data): True when every byte is below 128."},
+    {"sample_below", sample_below_of, METH_VARARGS,
+     "sample_below(start, values, threshold, keys, kept): key each float64 value by "
+     "SplitMix64 of start + its index, keep those keyed below threshold; how many."},
     {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
     {"relation_sums", relation_sums_of, METH_VARARGS,
      "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "

@@ -9,7 +9,13 @@ import pandas as pd
 import pyarrow as pa
 import pytest
 
-from worker.profiling.native import _kernels, partition_by_top_bits, row_hashes, row_keys
+from worker.profiling.native import (
+    _kernels,
+    partition_by_top_bits,
+    row_hashes,
+    row_keys,
+    sample_below,
+)
 
 SEED = 0x7D3A
 
@@ -152,3 +158,15 @@ def test_hashes_grouped_by_top_bits_keep_rows_in_order(count) -> None:
     assert (positions == order).all()
     expected = np.concatenate([[0], np.cumsum(np.bincount(tops.astype(np.intp), minlength=16))])
     assert (bounds == expected).all()
+
+
+def test_sample_keys_are_the_row_keys_as_fractions_and_filter_below_the_threshold() -> None:
+    values = np.arange(50_000, dtype=np.float64)
+    keys, kept = sample_below(7 << 40, values, 0.1)
+    every = (row_keys(7 << 40, 50_000) >> np.uint64(11)).astype(np.float64) * 2.0**-53
+    below = every < 0.1
+    assert (kept == values[below]).all() and (keys == every[below]).all()
+    # Each value enters with probability 0.1: about 5,000 of them (binomial sd 67).
+    assert abs(kept.size - 5_000) < 5 * 67
+    all_keys, all_kept = sample_below(0, values[:10], np.inf)
+    assert (all_kept == values[:10]).all() and ((all_keys >= 0) & (all_keys < 1)).all()
