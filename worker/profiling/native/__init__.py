@@ -9,6 +9,7 @@ counts, each numeric column's moments and counts, and HyperLogLog register
 updates. They are built by pip when the project is installed.
 """
 
+from worker.profiling.native.keys import row_keys, sample_below
 from worker.profiling.native.numbers import (
     NumberSummary,
     hll_add,
@@ -17,12 +18,7 @@ from worker.profiling.native.numbers import (
 )
 from worker.profiling.native.parse import bytes_are_ascii, parse_decimals
 from worker.profiling.native.relations import RelationSums, relation_sums
-from worker.profiling.native.rowhash import (
-    partition_by_top_bits,
-    row_hashes,
-    row_keys,
-    sample_below,
-)
+from worker.profiling.native.rowhash import partition_by_top_bits, row_hashes
 
 __all__ = [
     "NumberSummary",

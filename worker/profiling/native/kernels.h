@@ -43,7 +43,7 @@ void row_hash_finish(uint64_t *h, int64_t rows);
 void partition_by_top_bits(const uint64_t *hashes, int64_t count, int bits, uint64_t *sorted,
                            uint32_t *positions, int64_t *bounds);
 
-/* keys[i] = SplitMix64 of row number start + i (plus seed): a uniform 64-bit key per row
+/* keys.c. keys[i] = SplitMix64 of row number start + i (plus seed): a uniform 64-bit key per row
  * that does not depend on how the table was cut into batches (Steele, Lea & Flood 2014). */
 void row_keys(int64_t start, int64_t count, uint64_t seed, uint64_t *keys);
 

@@ -1,4 +1,5 @@
-/* Decimal numbers written as text, parsed only where the result is exact to the bit.
+/* Text checks: decimal numbers parsed only where the result is exact to the bit, and
+ * the ASCII test of a column's bytes (bytes_are_ascii, at the end).
  *
  * A cell is [+-]digits[.digits][(e|E)[+-]digits], with a digit on at least one side
  * of the point and nothing before or after. Its digits (at most 19 once leading zeros

@@ -7,6 +7,8 @@
  * that differ collide only by chance, about one in 2^64 per pair.
  * Going column by column reads each column's buffers in order, and the row hashes
  * (8 bytes a row) stay in the second-level cache for a batch of some 50,000 rows.
+ * partition_by_top_bits then groups a batch's hashes by their top bits, a counting
+ * sort, for the duplicate count's slices.
  *
  * References: Collet, "xxHash: extremely fast hash algorithm", XXH64 specification
  * (https://github.com/Cyan4973/xxHash/blob/dev/doc/xxhash_spec.md).
@@ -117,27 +119,4 @@ void partition_by_top_bits(const uint64_t *restrict hashes, int64_t count, int b
         sorted[at] = hashes[i];
         positions[at] = (uint32_t)i;
     }
-}
-
-static inline uint64_t splitmix(uint64_t z) {
-    z = z * 0x9E3779B97F4A7C15ULL + 0x9E3779B97F4A7C15ULL;
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-    return z ^ (z >> 31);
-}
-
-void row_keys(int64_t start, int64_t count, uint64_t seed, uint64_t *restrict keys) {
-    for (int64_t i = 0; i < count; i++) keys[i] = splitmix((uint64_t)(start + i) + seed);
-}
-
-int64_t sample_below(uint64_t start, const double *restrict values, int64_t count,
-                     double threshold, double *restrict keys, double *restrict kept) {
-    int64_t m = 0;
-    for (int64_t i = 0; i < count; i++) {
-        double key = (double)(splitmix(start + (uint64_t)i) >> 11) * 0x1.0p-53;
-        keys[m] = key;
-        kept[m] = values[i];
-        m += key < threshold;
-    }
-    return m;
 }
