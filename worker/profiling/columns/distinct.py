@@ -5,10 +5,10 @@ hashed to 64 bits into a HyperLogLog (``worker.profiling.hyperloglog``) of
 2^precision registers, whose relative standard error is 1.04 / sqrt(2^precision)
 (0.41 % at precision 16). Text is hashed by the compiled row hash over its
 bytes (``worker.profiling.native.row_hashes``, one fixed seed everywhere, so
-states from different workers agree); numbers by the
-SplitMix64 finaliser over their IEEE 754 bits, in numpy, which spares the copy
-of every batch into polars (a 53,370-number batch past the bound updates in
-0.37-0.39 ms against 0.50-0.54 ms through polars, measured side by side).
+states from different workers agree); numbers by the SplitMix64 finaliser
+over their IEEE 754 bits, hashed in the same compiled pass that updates the
+registers (``worker.profiling.native.hll_add_numbers``; ``hash_numbers`` gives
+the same hashes in numpy for the distinct values kept until the bound).
 
 References: G. L. Steele, D. Lea and C. H. Flood, "Fast splittable pseudorandom
 number generators", OOPSLA 2014 (the SplitMix64 finaliser).

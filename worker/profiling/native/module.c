@@ -381,22 +381,30 @@ static PyObject *number_summary_of(PyObject *self, PyObject *args) {
     return result;
 }
 
+/* 2^precision writable registers and a buffer of items to add to them; 0 with an
+ * exception set (nothing held) if either is wrong. */
+static int hold_sketch(PyObject *registers_obj, int precision, PyObject *items_obj,
+                       Py_buffer *registers, Py_buffer *items) {
+    if (precision < 4 || precision > 24) {
+        PyErr_SetString(PyExc_ValueError, "precision must be 4 to 24");
+        return 0;
+    }
+    if (!get_buffer(registers_obj, registers, (Py_ssize_t)1 << precision, 1, "the registers"))
+        return 0;
+    if (!get_buffer(items_obj, items, 0, 0, "the items")) {
+        PyBuffer_Release(registers);
+        return 0;
+    }
+    return 1;
+}
+
 static PyObject *hll_add_of(PyObject *self, PyObject *args) {
     (void)self;
     PyObject *registers_obj, *hashes_obj;
     int precision;
     if (!PyArg_ParseTuple(args, "OiO", &registers_obj, &precision, &hashes_obj)) return NULL;
-    if (precision < 4 || precision > 24) {
-        PyErr_SetString(PyExc_ValueError, "precision must be 4 to 24");
-        return NULL;
-    }
     Py_buffer registers, hashes;
-    if (!get_buffer(registers_obj, &registers, (Py_ssize_t)1 << precision, 1, "the registers"))
-        return NULL;
-    if (!get_buffer(hashes_obj, &hashes, 0, 0, "the hashes")) {
-        PyBuffer_Release(&registers);
-        return NULL;
-    }
+    if (!hold_sketch(registers_obj, precision, hashes_obj, &registers, &hashes)) return NULL;
     Py_BEGIN_ALLOW_THREADS
     hll_add(registers.buf, precision, hashes.buf, hashes.len / 8);
     Py_END_ALLOW_THREADS
@@ -412,17 +420,8 @@ static PyObject *hll_add_numbers_of(PyObject *self, PyObject *args) {
     unsigned long long seed;
     if (!PyArg_ParseTuple(args, "OiOK", &registers_obj, &precision, &values_obj, &seed))
         return NULL;
-    if (precision < 4 || precision > 24) {
-        PyErr_SetString(PyExc_ValueError, "precision must be 4 to 24");
-        return NULL;
-    }
     Py_buffer registers, values;
-    if (!get_buffer(registers_obj, &registers, (Py_ssize_t)1 << precision, 1, "the registers"))
-        return NULL;
-    if (!get_buffer(values_obj, &values, 0, 0, "the values")) {
-        PyBuffer_Release(&registers);
-        return NULL;
-    }
+    if (!hold_sketch(registers_obj, precision, values_obj, &registers, &values)) return NULL;
     Py_BEGIN_ALLOW_THREADS
     hll_add_numbers(registers.buf, precision, values.buf, values.len / 8, seed);
     Py_END_ALLOW_THREADS
