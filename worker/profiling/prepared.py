@@ -41,6 +41,9 @@ class BatchPlan:
     """Which columns to parse as numbers and which to keep as labels.
 
     ``decimal`` and ``thousands`` come from the reader's ``SourceInfo``.
+    ``clean_labels`` remembers, per label column, labels already found to need
+    no trimming and to be no missing token, so a batch of known labels is not
+    checked again; it fills as batches pass.
     """
 
     numeric: frozenset[str]
@@ -48,6 +51,7 @@ class BatchPlan:
     missing_tokens: tuple[str, ...]
     decimal: str = "."
     thousands: str | None = None
+    clean_labels: dict[str, set[str]] = field(default_factory=dict, compare=False)
 
 
 @dataclass(frozen=True)
@@ -245,7 +249,7 @@ class PreparedColumn:
     encoded: pa.DictionaryArray | None = None  # the labels dictionary-encoded, when known
 
 
-def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
+def _clean_labels(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
     """A label column whose labels need no trimming and hold no missing token, else None.
 
     Labels repeat, so the checks run on the distinct labels of the batch, not on
@@ -262,12 +266,7 @@ def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
     counted = pa.StructArray.from_arrays(
         [values, pa.array(tally, pa.int64())], names=["values", "counts"]
     )
-    trimmed = pc.ascii_trim_whitespace(values)
-    if len(values) and (
-        pc.any(pc.not_equal(pc.binary_length(trimmed), pc.binary_length(values))).as_py()
-        or pc.any(pc.equal(trimmed, "")).as_py()
-        or pc.any(pc.is_in(trimmed, value_set=pa.array(plan.missing_tokens, trimmed.type))).as_py()
-    ):
+    if not _labels_are_clean(name, values, plan):
         return None
     return PreparedColumn(
         missing=null_mask(column),
@@ -277,6 +276,35 @@ def _clean_labels(column: pa.Array, plan: BatchPlan) -> PreparedColumn | None:
         label_counts=counted,
         encoded=encoded,
     )
+
+
+_ASCII_SPACE = " \t\n\v\f\r"  # what Arrow's ascii_trim_whitespace trims
+_REMEMBERED_LABELS = 10_000  # per column; past it new labels are checked every batch
+
+
+def _labels_are_clean(name: str, labels: pa.Array, plan: BatchPlan) -> bool:
+    """True when none of a batch's distinct ``labels`` is blank, padded with whitespace
+    or a missing token. A few hundred labels are checked in Python against those seen
+    clean before (one conversion instead of eight Arrow calls a batch); many, in Arrow."""
+    if not len(labels):
+        return True
+    tokens = plan.missing_tokens
+    if len(labels) > 1_000:
+        trimmed = pc.ascii_trim_whitespace(labels)
+        return not (
+            pc.any(pc.not_equal(pc.binary_length(trimmed), pc.binary_length(labels))).as_py()
+            or pc.any(pc.equal(trimmed, "")).as_py()
+            or pc.any(pc.is_in(trimmed, value_set=pa.array(tokens, trimmed.type))).as_py()
+        )
+    known = plan.clean_labels.setdefault(name, set())
+    new = [label for label in labels.to_pylist() if label not in known]
+    for label in new:
+        trimmed = label.strip(_ASCII_SPACE)
+        if trimmed != label or not trimmed or trimmed in tokens:
+            return False
+    if len(known) + len(new) <= _REMEMBERED_LABELS:
+        known.update(new)
+    return True
 
 
 def _label_numbers(prepared: PreparedColumn, plan: BatchPlan) -> np.ndarray:
@@ -305,7 +333,7 @@ def prepare_column(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColu
             detail = MissingCounts(null=column.null_count, blank=0, tokens={})
             return PreparedColumn(missing=mask, counts=detail, numbers=numbers, text=column)
     if is_text_type(column.type) and name in plan.labels:
-        prepared = _clean_labels(column, plan)
+        prepared = _clean_labels(name, column, plan)
         if prepared is not None:
             if name in plan.numeric:
                 prepared = dataclasses.replace(prepared, numbers=_label_numbers(prepared, plan))

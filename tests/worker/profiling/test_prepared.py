@@ -75,6 +75,28 @@ def test_clean_label_columns_are_counted_once_and_padded_ones_take_the_careful_p
     assert padded.padded["s"] == 1
 
 
+def test_labels_seen_clean_are_remembered_and_each_new_fault_is_still_caught():
+    # Planted: after clean batches, a batch with one new faulty label takes the careful
+    # path, whatever the fault; a few labels are checked in Python, many in Arrow.
+    for labels in (["dry", "reefer", "bulk"], [f"berth-{i:04d}" for i in range(1_500)]):
+        plan = _plan(numeric=frozenset(), labels=frozenset({"s"}))
+        for _ in range(2):
+            clean = prepare_batch(pa.record_batch({"s": pa.array(labels)}), 0, plan)
+            assert clean.padded["s"] == 0 and clean.missing_counts["s"].total == 0
+        for fault, blank, tokens, padded in (
+            (" dry", 0, {}, 1),
+            ("dry\t", 0, {}, 1),
+            ("", 1, {}, 0),
+            ("  ", 1, {}, 0),
+            ("NA", 0, {"NA": 1}, 0),
+        ):
+            batch = pa.record_batch({"s": pa.array([*labels, fault])})
+            prepared = prepare_batch(batch, 0, plan)
+            detail = prepared.missing_counts["s"]
+            assert (detail.blank, detail.tokens, prepared.padded["s"]) == (blank, tokens, padded)
+            assert prepared.labels["s"].to_pylist()[:-1] == labels
+
+
 def test_long_cells_skip_the_token_check_and_short_ones_keep_it():
     # Truth by construction: codes longer than every token are never missing tokens;
     # a column with one short cell still has it checked.

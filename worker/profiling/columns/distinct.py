@@ -23,7 +23,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from worker.profiling.hyperloglog import HyperLogLog
-from worker.profiling.native import row_hashes
+from worker.profiling.native import NumberSet, row_hashes
 
 _SEED = 0x7469646577616974
 
@@ -53,9 +53,12 @@ def hash_numbers(numbers: np.ndarray) -> np.ndarray:
 class DistinctState:
     """Distinct values of a column; exact below ``exact_bound``, a HyperLogLog above.
 
-    While exact, the distinct values themselves are kept (Arrow's hash-based
-    ``unique``, no hashing step); past the bound they are hashed into the
-    registers and every later batch is hashed.
+    While exact, the distinct values themselves are kept: numbers in a compiled
+    set of their bits (``worker.profiling.native.NumberSet``), text as the
+    batches' distinct values (Arrow's hash-based ``unique``), no hashing step;
+    past the bound they are hashed into the registers and every later batch is
+    hashed. A column that gave both (text in the batches before its numbers
+    were recognised) counts its numbers as Arrow writes them beside the text.
     """
 
     def __init__(self, exact_bound: int, precision: int = 16) -> None:
@@ -63,6 +66,7 @@ class DistinctState:
         self.precision = precision
         self._parts: list[pa.Array] = []  # distinct values of batches, not yet joined
         self._kept = 0
+        self._numbers = NumberSet()
         self._sketch: HyperLogLog | None = None
 
     @property
@@ -75,11 +79,11 @@ class DistinctState:
             if self._sketch is not None:
                 self._sketch.update_numbers(values, _SEED)
                 return
-            numbers = np.asarray(values, dtype=np.float64)
-            numbers = numbers[~np.isnan(numbers)]
-            values = pa.array(numbers + 0.0)  # -0.0 and 0.0 are one number
-        else:
-            values = _present(values)
+            self._numbers.add(values)
+            if self._numbers.count > self.exact_bound:
+                self._to_sketch()
+            return
+        values = _present(values)
         if len(values) == 0:
             return
         if self._sketch is not None:
@@ -106,8 +110,10 @@ class DistinctState:
         self._sketch = HyperLogLog(self.precision)
         for part in self._parts:
             self._sketch.update(hash_values(part))
+        self._sketch.update_numbers(self._numbers.values(), _SEED)
         self._parts = []
         self._kept = 0
+        self._numbers = NumberSet()
 
     def merge(self, other: DistinctState) -> DistinctState:
         out = DistinctState(self.exact_bound, self.precision)
@@ -116,6 +122,10 @@ class DistinctState:
             if parts:
                 out._parts = [part.cast(parts[0].type) for part in parts]
                 out._join()
+            out._numbers.add(self._numbers.values())
+            out._numbers.add(other._numbers.values())
+            if out.exact and out._numbers.count > self.exact_bound:
+                out._to_sketch()
             return out
         out._sketch = HyperLogLog(self.precision)
         for part in (self, other):
@@ -123,14 +133,21 @@ class DistinctState:
                 out._sketch.merge(part._sketch)
             for values in part._parts:
                 out._sketch.update(hash_values(values))
+            out._sketch.update_numbers(part._numbers.values(), _SEED)
         return out
 
     def estimate(self) -> int:
         if self._sketch is None:
             self._join()
-        if self._sketch is None:
+        if self._sketch is not None:
+            return round(self._sketch.estimate())
+        if not self._parts:
+            return self._numbers.count
+        if not self._numbers.count:
             return self._kept
-        return round(self._sketch.estimate())
+        text = self._parts[0]
+        numbers = pa.array(self._numbers.values()).cast(text.type)
+        return len(pc.unique(pa.concat_arrays([text, numbers])))
 
     def finalize(self) -> dict[str, Any]:
         distinct = self.estimate()

@@ -113,6 +113,15 @@ void hll_add(uint8_t *registers, int precision, const uint64_t *hashes, int64_t 
 void hll_add_numbers(uint8_t *registers, int precision, const double *values, int64_t count,
                      uint64_t seed);
 
+/* numberset.c. An exact set of float64 values: table has 2^bits slots (1 <= bits <= 40),
+ * NUMBER_SET_EMPTY in the free ones (a NaN pattern: NaN values are never added), and
+ * *filled of them in use. Adds values from the first on (NaN skipped, -0.0 as 0.0) until
+ * all are in or half the slots are used; updates *filled and returns how many values it
+ * went through, so the caller grows the table and adds the rest. */
+#define NUMBER_SET_EMPTY 0xFFF8DEADBEEF5E7FULL
+int64_t number_set_add(uint64_t *table, int bits, int64_t *filled, const double *values,
+                       int64_t count);
+
 /* Parses each text cell of a column as a decimal number into out (NaN for a null);
  * returns rows, or the first row it cannot parse exactly (parse.c), where it stops. */
 int64_t parse_decimals(const column_layout *column, int64_t rows, double *out);

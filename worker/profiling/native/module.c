@@ -430,6 +430,36 @@ static PyObject *hll_add_numbers_of(PyObject *self, PyObject *args) {
     Py_RETURN_NONE;
 }
 
+static PyObject *number_set_add_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *table_obj, *values_obj;
+    Py_ssize_t filled;
+    if (!PyArg_ParseTuple(args, "OnO", &table_obj, &filled, &values_obj)) return NULL;
+    Py_buffer table, values;
+    if (!get_buffer(table_obj, &table, 0, 1, "table")) return NULL;
+    Py_ssize_t slots = table.len / 8;
+    int bits = 0;
+    while (bits < 40 && ((Py_ssize_t)1 << bits) < slots) bits++;
+    if (slots < 2 || ((Py_ssize_t)1 << bits) != slots || table.len % 8 || filled < 0 ||
+        filled > slots / 2) {
+        PyErr_SetString(PyExc_ValueError,
+                        "the table needs a power of two uint64 slots, at most half filled");
+        PyBuffer_Release(&table);
+        return NULL;
+    }
+    if (!get_buffer(values_obj, &values, 0, 0, "values")) {
+        PyBuffer_Release(&table);
+        return NULL;
+    }
+    int64_t used = filled, done;
+    Py_BEGIN_ALLOW_THREADS
+    done = number_set_add(table.buf, bits, &used, values.buf, values.len / 8);
+    Py_END_ALLOW_THREADS
+    PyBuffer_Release(&values);
+    PyBuffer_Release(&table);
+    return Py_BuildValue("LL", (long long)done, (long long)used);
+}
+
 static PyMethodDef methods[] = {
     {"hash_column", hash_column, METH_VARARGS,
      "hash_column(out, rows, validity, validity_offset, offsets, offset_bits, data, width, "
@@ -462,6 +492,9 @@ static PyMethodDef methods[] = {
     {"hll_add_numbers", hll_add_numbers_of, METH_VARARGS,
      "hll_add_numbers(registers, precision, values, seed): add float64 values (NaN "
      "skipped), hashed by SplitMix64's finaliser, to the uint8 registers."},
+    {"number_set_add", number_set_add_of, METH_VARARGS,
+     "number_set_add(table, filled, values): add float64 values (NaN skipped) to the "
+     "uint64 open-addressing table until done or half full; (values gone through, filled)."},
     {NULL, NULL, 0, NULL},
 };
 
