@@ -1,7 +1,9 @@
 """The ``tidewaiter`` command.
 
 Each module of this package adds one group of subcommands through its
-``register(subparsers)`` function; ``main`` wires them together.
+``register(subparsers)`` function; ``main`` wires them together. The modules
+import what their commands need when a command runs, so starting one command
+does not load the settings, the engine or the service of every other.
 """
 
 from __future__ import annotations

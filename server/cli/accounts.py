@@ -7,8 +7,6 @@ import getpass
 import secrets
 import sys
 
-from server.settings import get_settings
-
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     """Add the ``user``, ``token`` and ``files`` subcommands."""
@@ -57,6 +55,7 @@ def _read_password(args: argparse.Namespace) -> tuple[str, bool]:
 
 def _user_add(args: argparse.Namespace) -> int:
     from server.security.passwords import WeakPassword, check_strength, hash_password
+    from server.settings import get_settings
     from server.store import accounts, session_scope
 
     password, generated = _read_password(args)
@@ -83,6 +82,7 @@ def _user_add(args: argparse.Namespace) -> int:
 
 
 def _user_list(args: argparse.Namespace) -> int:
+    from server.settings import get_settings
     from server.store import accounts, session_scope
 
     with session_scope(get_settings()) as session:
@@ -95,6 +95,7 @@ def _user_list(args: argparse.Namespace) -> int:
 
 
 def _user_disable(args: argparse.Namespace) -> int:
+    from server.settings import get_settings
     from server.store import accounts, session_scope
 
     with session_scope(get_settings()) as session:
@@ -112,6 +113,7 @@ def _user_disable(args: argparse.Namespace) -> int:
 
 
 def _token_add(args: argparse.Namespace) -> int:
+    from server.settings import get_settings
     from server.store import accounts, session_scope
 
     with session_scope(get_settings()) as session:
@@ -134,6 +136,7 @@ def _token_add(args: argparse.Namespace) -> int:
 
 def _files_purge(args: argparse.Namespace) -> int:
     from server.security.retention import purge_old_files
+    from server.settings import get_settings
     from server.store import file_store, session_scope
 
     settings = get_settings()

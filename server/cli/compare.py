@@ -8,9 +8,6 @@ import sys
 from pathlib import Path
 from typing import Any, TextIO
 
-from server.settings import get_settings
-from worker.profiling.judgement import compare_profiles
-
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     """Add the ``compare`` subcommand."""
@@ -102,6 +99,9 @@ def print_drift(drift: dict[str, Any], out: TextIO) -> None:
 
 def run(args: argparse.Namespace) -> int:
     """Compare the two profiles; exit code 0, or 2 when a file is not a profile."""
+    from server.settings import get_settings
+    from worker.profiling.judgement import compare_profiles
+
     try:
         baseline, target = read_profile(args.baseline), read_profile(args.target)
     except ProfileFileError as exc:

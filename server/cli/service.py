@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import argparse
+from typing import TYPE_CHECKING
 
-from server.settings import Settings, get_settings
+if TYPE_CHECKING:
+    from server.settings import Settings
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
@@ -21,6 +23,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def _db_upgrade(args: argparse.Namespace) -> int:
+    from server.settings import get_settings
     from server.store import schema
 
     settings = get_settings()
@@ -32,6 +35,7 @@ def _db_upgrade(args: argparse.Namespace) -> int:
 
 
 def _db_downgrade(args: argparse.Namespace) -> int:
+    from server.settings import get_settings
     from server.store import schema
 
     url = get_settings().resolved_database_url
@@ -64,6 +68,7 @@ def _serve(args: argparse.Namespace) -> int:
     import uvicorn
 
     from server.app import create_app
+    from server.settings import get_settings
 
     settings = get_settings()
     host = args.host or settings.host
@@ -84,6 +89,7 @@ def _serve(args: argparse.Namespace) -> int:
 
 
 def _worker(args: argparse.Namespace) -> int:
+    from server.settings import get_settings
     from worker.jobs.celery_app import QUEUE, celery_for
 
     settings = get_settings()
@@ -111,6 +117,7 @@ def _sweep(args: argparse.Namespace) -> int:
     import time
 
     from server.security.retention import purge_by_settings
+    from server.settings import get_settings
     from worker.jobs.sweeper import sweep
 
     settings = get_settings()
@@ -127,6 +134,7 @@ def _sweep(args: argparse.Namespace) -> int:
 
 def _demo_load(args: argparse.Namespace) -> int:
     from server.demo import load_demo
+    from server.settings import get_settings
 
     result = load_demo(get_settings())
     for intake_id, status in result.statuses.items():

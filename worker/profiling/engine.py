@@ -9,7 +9,6 @@ states are finalized into the profile document of the design notes.
 from __future__ import annotations
 
 import copy
-import hashlib
 import importlib
 import os
 import queue
@@ -23,6 +22,7 @@ from typing import Any
 import pyarrow as pa
 import pyarrow.compute as pc
 
+from worker.filedigest import FileDigest
 from worker.profiling.columns.column import ColumnState
 from worker.profiling.errors import ProfileError
 from worker.profiling.limits import check_cells, check_columns
@@ -51,7 +51,7 @@ def profile_file(
     columnar_copy: Path | None = None,
     sheet: str | None = None,
     source_name: str | None = None,
-    sha256: str | None = None,
+    sha256: str | FileDigest | None = None,
 ) -> dict[str, Any]:
     """Profile one delivered file and return its profile document (format_version 1).
 
@@ -59,15 +59,15 @@ def profile_file(
     written for on-demand questions. ``source_name`` is the name shown in the
     profile (the upload's original name); it defaults to the file's name.
     ``sha256`` is the file's digest when the caller already knows it (the
-    service computed it while the upload streamed in); otherwise it is computed
-    here, beside the profiling.
+    service computed it while the upload streamed in), or a ``FileDigest`` the
+    caller started earlier; otherwise it is computed here, beside the profiling.
     """
     options = options or ProfileOptions()
     path = Path(path)
     report = progress or (lambda stage, share: None)
     if not path.is_file():
         raise ProfileError(f"there is no file at {path.name}")
-    digest = _Digest(path) if sha256 is None else None
+    digest = FileDigest(path) if sha256 is None else sha256
     report("reading", 0.0)
     pool = ThreadPoolExecutor(max_workers=options.threads) if options.threads > 1 else None
     with open_table(path, options=options, sheet=sheet) as source:
@@ -96,7 +96,7 @@ def profile_file(
         profile["source"] = {
             "name": source_name or path.name,
             "bytes": path.stat().st_size,
-            "sha256": digest.result() if digest is not None else sha256,
+            "sha256": digest.result() if isinstance(digest, FileDigest) else digest,
             **source.info.as_dict(),
         }
         profile["dataset"]["parse_errors"] = list(source.parse_errors)
@@ -393,26 +393,6 @@ def _batches(source: Any, ahead: int = 3) -> Iterator[pa.RecordBatch]:
     finally:
         stop.set()
         worker.join()
-
-
-class _Digest:
-    """The file's SHA-256, computed in a thread beside the profiling (hashlib frees the GIL)."""
-
-    def __init__(self, path: Path) -> None:
-        self._value: str | None = None
-        self._thread = threading.Thread(target=self._run, args=(path,), daemon=True)
-        self._thread.start()
-
-    def _run(self, path: Path) -> None:
-        digest = hashlib.sha256()
-        with path.open("rb") as handle:
-            while chunk := handle.read(1 << 22):
-                digest.update(chunk)
-        self._value = digest.hexdigest()
-
-    def result(self) -> str | None:
-        self._thread.join()
-        return self._value
 
 
 def _text_schema(names: list[str]) -> pa.Schema:

@@ -48,6 +48,22 @@ def test_profile_json_goes_to_the_named_file(
     assert json.loads(out_path.read_text(encoding="utf-8"))["dataset"]["columns"] == 3
 
 
+def test_the_command_starts_without_loading_the_engine_or_the_settings(delivery: Path) -> None:
+    # Commands load what they need when they run: `tidewaiter profile` starts the
+    # file's digest before the engine's half second of imports, on the idle core.
+    probe = (
+        "import sys, server.cli\n"
+        "heavy = ('pyarrow', 'numpy', 'pydantic', 'worker.profiling')\n"
+        "print(','.join(m for m in heavy if m in sys.modules))\n"
+        "server.cli.main(['profile', '--quiet', '--json', '/dev/null', sys.argv[1]])\n"
+        "print('worker.profiling' in sys.modules)\n"
+    )
+    done = subprocess.run(
+        [sys.executable, "-c", probe, str(delivery)], capture_output=True, text=True, check=True
+    )
+    assert done.stdout.split("\n")[:2] == ["", "True"]
+
+
 def test_unreadable_file_exits_2_with_one_line(
     tmp_path: Path, capsys: pytest.CaptureFixture[str]
 ) -> None:

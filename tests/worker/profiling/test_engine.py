@@ -11,6 +11,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from palmerpenguins import load_penguins
 
+from worker.filedigest import FileDigest
 from worker.profiling import ProfileError, ProfileOptions, profile_file
 from worker.profiling.engine import TableProfiler
 from worker.profiling.readers.source import SourceInfo
@@ -278,6 +279,9 @@ def test_the_digest_is_computed_unless_the_caller_knows_it(tmp_path) -> None:
     assert computed == hashlib.sha256(path.read_bytes()).hexdigest()
     given_digest = "ab" * 32  # what the upload computed while streaming
     assert profile_file(path, sha256=given_digest)["source"]["sha256"] == given_digest
+    started = FileDigest(path)  # what the command line starts before the engine loads
+    assert profile_file(path, sha256=started)["source"]["sha256"] == computed
+    assert FileDigest(tmp_path / "gone.csv").result() is None
 
 
 def test_profiling_does_not_load_scipy_stats(tmp_path) -> None:
