@@ -9,6 +9,7 @@ states are finalized into the profile document of the design notes.
 from __future__ import annotations
 
 import copy
+import dataclasses
 import importlib
 import os
 import queue
@@ -81,6 +82,7 @@ def profile_file(
                 if writer is not None:
                     writer.write(raw)
                 report("reading", source.bytes_read() / max(source.total_bytes, 1))
+            profiler.wait()  # the last batch's across-column figures, while the pool runs
         except BaseException:
             if writer is not None:
                 writer.abort()  # no half copy left where a whole one is expected
@@ -132,7 +134,8 @@ class TableProfiler:
         self.relations: RelationsState | None = None
         self.duplicates = DuplicateState(self.column_names, options)
         self.first_row = first_row
-        self._pending: dict[str, Future[None]] = {}
+        self._pending: dict[str, Future[Any]] = {}
+        self._lagging: tuple[pa.RecordBatch, int, dict[str, Future]] | None = None
         self.rows = 0
         self._plan = self._make_plan()
 
@@ -148,63 +151,112 @@ class TableProfiler:
         )
 
     def update(self, raw: pa.RecordBatch) -> None:
-        """Add the next batch of rows (in table order)."""
+        """Add the next batch of rows (in table order).
+
+        With a pool, the work is pipelined: each column is a lane of its own, whose
+        batches run in table order, so one column of this batch may run while
+        another column of the previous batch still does (no barrier between
+        batches). The across-column figures need every column of a batch: they
+        are taken one batch behind, when the next batch has been handed out.
+        ``wait`` takes the last batch's.
+        """
         if raw.num_rows == 0:
             return
         offset = self.first_row + self.rows
-        undecided = [c for c in self.columns.values() if c.candidates is None]
-        decided = False
-        for state in undecided:
-            column = raw.column(state.name)
-            prepared = prepare_column(state.name, column, self._plan)
-            present = (
-                prepared.text.drop_null()
-                if prepared.text is not None
-                else pc.filter(column, pa.array(~prepared.missing))
-            )
-            if len(present):
-                state.choose(column, present, self.decimal, self.thousands)
-                decided = True
+        fresh = set()
         for state in self.columns.values():
-            if state not in undecided and state.reconsider(
-                raw.column(state.name), self.decimal, self.thousands
-            ):
-                decided = True
-        if decided:
+            if state.candidates is None and self._choose(state, raw.column(state.name)):
+                fresh.add(state.name)
+        if fresh:
             self._plan = self._make_plan()
-        plan = self._plan
-
-        def one_column(name: str) -> tuple[str, PreparedColumn]:
-            column = raw.column(name)
-            prepared = prepare_column(name, column, plan)
-            self.columns[name].update(column, prepared)
-            return name, prepared
-
-        # Row hashes need only the raw cells: they are taken while the columns are prepared.
-        self._in_order("duplicates", self.duplicates.update, raw, offset)
-        prepared_columns = dict(self._map(one_column, self.column_names))
-        batch = assemble_batch(raw, offset, prepared_columns)
         if self.relations is None:
             self.relations = RelationsState(
                 self._relation_numeric(), self._relation_labels(), self.options
             )
-        # The across-column figures of this batch run while the next batch's columns are.
-        self._in_order("relations", self.relations.update, batch)
+        plan = self._plan
+        # Row hashes need only the raw cells: they are taken while the columns are prepared.
+        self._in_order("duplicates", self.duplicates.update, raw, offset)
+        columns = {
+            name: self._in_order(
+                name, self._update_column, name, raw.column(name), plan, name in fresh
+            )
+            for name in self.column_names
+        }
+        lagging, self._lagging = self._lagging, (raw, offset, columns)
+        if lagging is not None:
+            self._relate(*lagging)
         self.rows += raw.num_rows
 
-    def _in_order(self, lane: str, function: Callable[..., None], *args: Any) -> None:
-        """Run ``function`` in the pool once the same lane's previous call has finished,
-        so each across-column state takes its batches in table order."""
+    def _choose(self, state: ColumnState, column: pa.Array) -> bool:
+        """Choose the candidate parsers of a column still without them, from this
+        batch's present values; False while it has none."""
+        pending = self._pending.get(state.name)
+        if pending is not None:
+            pending.result()  # its previous batch's update reads the candidates
+        prepared = prepare_column(state.name, column, self._plan)
+        present = (
+            prepared.text.drop_null()
+            if prepared.text is not None
+            else pc.filter(column, pa.array(~prepared.missing))
+        )
+        if not len(present):
+            return False
+        state.choose(column, present, self.decimal, self.thousands)
+        return True
+
+    def _update_column(
+        self, name: str, column: pa.Array, plan: BatchPlan, fresh: bool
+    ) -> PreparedColumn:
+        """Prepare one column of a batch and update its state (in the column's lane).
+
+        A column whose candidates were not chosen from this very batch may start
+        parsing numbers here (``ColumnState.reconsider``); the plan of this batch
+        and of every later one then parses this column's numbers.
+        """
+        state = self.columns[name]
+        if not fresh:
+            state.reconsider(column, self.decimal, self.thousands)
+        if state.candidates is not None and state.candidates.numeric and name not in plan.numeric:
+            plan = dataclasses.replace(plan, numeric=plan.numeric | {name})
+        prepared = prepare_column(name, column, plan)
+        state.update(column, prepared)
+        return prepared
+
+    def _relate(self, raw: pa.RecordBatch, offset: int, columns: dict[str, Future]) -> None:
+        """Hand the across-column figures one batch, once its columns are prepared."""
+        prepared = {name: future.result() for name, future in columns.items()}
+        batch = assemble_batch(raw, offset, prepared)
+        assert self.relations is not None
+        self._in_order("relations", self.relations.update, batch)
+
+    def _in_order(self, lane: str, function: Callable[..., Any], *args: Any) -> Future:
+        """Run ``function`` in the pool after the same lane's previous call, so each
+        state takes its batches in table order; without a pool, run it now.
+
+        The wait happens in the pool, not here. It cannot deadlock: a call only
+        waits for calls submitted before it, which the pool (first in, first out)
+        has already started or finished.
+        """
         if self.pool is None:
-            function(*args)
-            return
-        previous = self._pending.pop(lane, None)
-        if previous is not None:
-            previous.result()
-        self._pending[lane] = self.pool.submit(function, *args)
+            done: Future = Future()
+            done.set_result(function(*args))
+            return done
+        previous = self._pending.get(lane)
+
+        def after_previous() -> Any:
+            if previous is not None:
+                previous.result()
+            return function(*args)
+
+        future = self.pool.submit(after_previous)
+        self._pending[lane] = future
+        return future
 
     def wait(self) -> None:
-        """Wait for the across-column updates still running (errors surface here)."""
+        """Finish the updates still running (errors surface here)."""
+        lagging, self._lagging = self._lagging, None
+        if lagging is not None:
+            self._relate(*lagging)
         pending, self._pending = self._pending, {}
         for future in pending.values():
             future.result()

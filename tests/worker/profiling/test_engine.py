@@ -317,6 +317,8 @@ def test_one_thread_and_several_give_the_same_profile(tmp_path):
     # With threads, Spearman's ranks run beside the column summaries over every numeric
     # candidate; "mostly_words" starts as one (numbers first) and ends as text, so its
     # pairs must be left out as they are on one thread (truth by construction).
+    # With threads the columns are pipelined: "swell_m" turns numeric in a later batch
+    # (in its own lane) and "late_note" is empty until then; both must come out alike.
     rng = np.random.default_rng(11)
     rows = 12_000
     frame = pd.DataFrame(
@@ -325,6 +327,8 @@ def test_one_thread_and_several_give_the_same_profile(tmp_path):
             "temp_c": rng.normal(12, 2, rows).round(1),
             "mostly_words": [str(v) for v in range(3000)] + ["calm"] * (rows - 3000),
             "gauge": rng.choice(["north", "south", "east"], rows),
+            "swell_m": ["pending"] * 4000 + [f"{v:.2f}" for v in rng.gamma(2, 0.6, rows - 4000)],
+            "late_note": [None] * 5000 + list(rng.choice(["fog", "rain"], rows - 5000)),
         }
     )
     frame.loc[rng.choice(rows, 150, replace=False), "temp_c"] = np.nan
@@ -334,6 +338,8 @@ def test_one_thread_and_several_give_the_same_profile(tmp_path):
     one = profile_file(path, ProfileOptions(threads=1, **small_batches), sha256="-")
     several = profile_file(path, ProfileOptions(threads=2, **small_batches), sha256="-")
     assert _by_name(one)["mostly_words"]["kind"] != "numeric"
+    assert _by_name(one)["swell_m"]["kind"] == "numeric"
+    assert _by_name(one)["late_note"]["kind"] == "categorical"
     spearman = [p for p in several["pairs"] if p["method"] == "spearman"]
     assert [(p["a"], p["b"]) for p in spearman] == [("depth_m", "temp_c")]
     for key in ("dataset", "columns", "pairs", "twins", "crosstabs", "flags", "score"):

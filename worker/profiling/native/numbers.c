@@ -15,6 +15,7 @@
 #include "kernels.h"
 
 #define LANES 4
+#define FEW_CANDIDATES 16 /* up to this many, one pass per candidate */
 
 /* The first of the k sorted candidates that is not below v (k when none). */
 static inline int64_t lower_bound(const double *restrict candidates, int64_t k, double v) {
@@ -29,8 +30,11 @@ static inline int64_t lower_bound(const double *restrict candidates, int64_t k, 
     return low;
 }
 
-/* Adds each candidate's count among the kept values. Zero's count is the zeros; a
- * value nearer zero than every other candidate is none of them and skips the search. */
+/* Adds each candidate's count among the kept values. Zero's count is the zeros. A few
+ * candidates are counted one at a time with a comparison of every value (no branch
+ * to mispredict, and the loop vectorises); a long list is searched value by value, and
+ * a value nearer zero than every other candidate is none of them and skips the search. */
+VECTOR_CLONES
 static void count_candidates(const double *restrict kept, int64_t n,
                              const double *restrict candidates, int64_t k, int64_t zeros,
                              int64_t *restrict counts) {
@@ -38,6 +42,16 @@ static void count_candidates(const double *restrict kept, int64_t n,
     for (int64_t c = 0; c < k; c++) {
         if (candidates[c] == 0.0) counts[c] += zeros;
         else if (fabs(candidates[c]) < nearest) nearest = fabs(candidates[c]);
+    }
+    if (k <= FEW_CANDIDATES) {
+        for (int64_t c = 0; c < k; c++) {
+            const double candidate = candidates[c];
+            if (candidate == 0.0) continue;
+            int64_t count = 0;
+            for (int64_t i = 0; i < n; i++) count += kept[i] == candidate;
+            counts[c] += count;
+        }
+        return;
     }
     for (int64_t i = 0; i < n; i++) {
         double v = kept[i];

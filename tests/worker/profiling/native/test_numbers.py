@@ -44,6 +44,19 @@ def test_summary_matches_numpy(seed) -> None:
     assert expected[1] > 0 and expected[3] > 0 and expected[4] > 0 and expected[6] == 1
 
 
+def test_a_long_candidate_list_is_counted_as_a_short_one() -> None:
+    # A few candidates are counted one pass each, a long list by binary search: both
+    # must give numpy's counts (the long list holds every short one's codes).
+    x = planted(3)
+    kept = x[np.isfinite(x)]
+    many = np.unique(np.concatenate([CANDIDATES, np.arange(-30.0, 30.0, 1.5), [-0.0]]))
+    assert many.size > 16
+    for candidates in (CANDIDATES, many):
+        found = number_summary(x, candidates)
+        expected = [np.count_nonzero(kept == c) for c in candidates]  # reference: numpy
+        assert found.candidate_counts.tolist() == expected
+
+
 def test_whole_numbers_empty_and_all_missing() -> None:
     whole = number_summary(np.array([3.0, -2.0, 1e300, np.nan]))
     assert whole.integers is True and whole.n == 3
