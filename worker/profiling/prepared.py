@@ -20,7 +20,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 import pyarrow.types as pat
 
-from worker.profiling.native import parse_decimals
+from worker.profiling.native import dictionary_encode, parse_decimals
 
 
 @dataclass(frozen=True)
@@ -257,7 +257,7 @@ def _clean_labels(name: str, column: pa.Array, plan: BatchPlan) -> PreparedColum
     of its indices, in order of first appearance as ``value_counts`` gives them)
     and the codes the across-column counts use, so the labels are hashed once.
     """
-    encoded = pc.dictionary_encode(column)
+    encoded = dictionary_encode(column)
     values = encoded.dictionary
     indices = encoded.indices
     if indices.null_count:

@@ -18,6 +18,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from worker.profiling.columns.quantiles import QuantileState
+from worker.profiling.native import dictionary_encode
 from worker.profiling.prepared import is_text_type, null_mask
 
 # (format, "day" or "month" first when the form is ambiguous, else None)
@@ -195,7 +196,7 @@ class DatetimeState:
         """
         if not self._by_label or TYPED in self.states or not is_text_type(text.type):
             return None
-        encoded = pc.dictionary_encode(text)
+        encoded = dictionary_encode(text)
         if len(encoded.dictionary) > len(text) // 2:
             self._by_label = False
         return encoded

@@ -5,10 +5,11 @@ The passes (``kernels.h``) read a batch once, with the interpreter lock released
 where numpy would read it once per figure while holding the lock between calls:
 plain decimals parsed from text, row hashes for duplicate rows and distinct
 counts, the sums behind the co-moments, per-label moments and label-pair
-counts, each numeric column's moments and counts, exact sets of distinct numbers,
+counts, label codes, each numeric column's moments and counts, exact sets of distinct numbers,
 and HyperLogLog register updates. They are built by pip when the project is installed.
 """
 
+from worker.profiling.native.dictionary import dictionary_encode
 from worker.profiling.native.keys import row_keys, sample_below
 from worker.profiling.native.numbers import (
     NumberSummary,
@@ -26,6 +27,7 @@ __all__ = [
     "NumberSummary",
     "RelationSums",
     "bytes_are_ascii",
+    "dictionary_encode",
     "hll_add",
     "hll_add_numbers",
     "number_summary",

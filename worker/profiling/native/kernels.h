@@ -93,6 +93,12 @@ typedef struct {
 /* Returns 0, or -1 when memory for p scratch values could not be had. */
 int relation_batch(const relation_input *in, relation_sums *out);
 
+/* Dictionary codes of a text column (dictionary.c): codes[r] is the number of row r's
+ * cell among the distinct cells in order of first appearance (-1 for a null), and
+ * firsts[code] the first row holding that cell. Returns how many distinct cells, or
+ * -1 when memory for the table could not be had. */
+int64_t text_codes(const column_layout *c, int64_t rows, int32_t *codes, int64_t *firsts);
+
 /* The summary of one numeric column's batch (numbers.c). */
 typedef struct {
     int64_t n, zeros, negatives, integers; /* integers: 1 when every value is whole */

@@ -138,6 +138,42 @@ static PyObject *parse_decimals_of(PyObject *self, PyObject *args) {
     return PyLong_FromLongLong(parsed);
 }
 
+static PyObject *text_codes_of(PyObject *self, PyObject *args) {
+    (void)self;
+    PyObject *codes_obj, *firsts_obj, *validity_obj, *offsets_obj, *data_obj;
+    Py_ssize_t rows, validity_offset;
+    int offset_bits;
+    if (!PyArg_ParseTuple(args, "OOnOnOiO", &codes_obj, &firsts_obj, &rows, &validity_obj,
+                          &validity_offset, &offsets_obj, &offset_bits, &data_obj))
+        return NULL;
+    if (offset_bits == 0 || rows > INT32_MAX) {
+        PyErr_SetString(PyExc_ValueError, "codes are taken of text, fewer than 2**31 rows");
+        return NULL;
+    }
+    Py_buffer codes, firsts = {0};
+    if (!get_buffer(codes_obj, &codes, rows * 4, 1, "the codes")) return NULL;
+    if (!get_buffer(firsts_obj, &firsts, rows * 8, 1, "the first rows")) {
+        PyBuffer_Release(&codes);
+        return NULL;
+    }
+    held_column held;
+    if (!hold_column(&held, rows, validity_obj, validity_offset, offsets_obj, offset_bits,
+                     data_obj, 0)) {
+        PyBuffer_Release(&firsts);
+        PyBuffer_Release(&codes);
+        return NULL;
+    }
+    int64_t count;
+    Py_BEGIN_ALLOW_THREADS
+    count = text_codes(&held.layout, rows, codes.buf, firsts.buf);
+    Py_END_ALLOW_THREADS
+    release_column(&held);
+    PyBuffer_Release(&firsts);
+    PyBuffer_Release(&codes);
+    if (count < 0) return PyErr_NoMemory();
+    return PyLong_FromLongLong(count);
+}
+
 static PyObject *hash_finish(PyObject *self, PyObject *args) {
     (void)self;
     PyObject *out_obj;
@@ -480,6 +516,10 @@ static PyMethodDef methods[] = {
      "sample_below(start, values, threshold, keys, kept): key each float64 value by "
      "SplitMix64 of start + its index, keep those keyed below threshold; how many."},
     {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
+    {"text_codes", text_codes_of, METH_VARARGS,
+     "text_codes(codes, firsts, rows, validity, validity_offset, offsets, offset_bits, data): "
+     "number the distinct text cells in order of first appearance into the int32 codes (-1 "
+     "for null), each code's first row into the int64 firsts; how many distinct cells."},
     {"relation_sums", relation_sums_of, METH_VARARGS,
      "relation_sums(rows, values, codes, bases, sizes, pair_offsets, outputs): one pass "
      "adding a batch's across-column sums to the twelve output buffers."},

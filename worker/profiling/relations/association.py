@@ -20,9 +20,8 @@ from collections.abc import Mapping
 
 import numpy as np
 import pyarrow as pa
-import pyarrow.compute as pc
 
-from worker.profiling.native import RelationSums
+from worker.profiling.native import RelationSums, dictionary_encode
 from worker.profiling.relations.crosstab import chi_square_statistic, expected_counts
 
 
@@ -47,7 +46,7 @@ class LabelIndex:
         """Global codes per row (-1 where null), or None once the column passes ``bound``.
 
         ``array`` is text, or text already dictionary-encoded (then used as is)."""
-        encoded = array if pa.types.is_dictionary(array.type) else pc.dictionary_encode(array)
+        encoded = array if pa.types.is_dictionary(array.type) else dictionary_encode(array)
         if isinstance(encoded, pa.ChunkedArray):
             encoded = encoded.combine_chunks()
         dictionary = encoded.dictionary.to_pylist()
