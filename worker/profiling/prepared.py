@@ -20,7 +20,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 import pyarrow.types as pat
 
-from worker.profiling.native import dictionary_encode, parse_decimals
+from worker.profiling.native import dictionary_encode, padded_cells, parse_decimals
 
 
 @dataclass(frozen=True)
@@ -183,8 +183,12 @@ def _text_missing(
     Trimming removes ASCII whitespace (space, tab, line breaks); it is much cheaper
     than Unicode trimming, and other space characters are rare in delivered files.
     """
-    trimmed = pc.ascii_trim_whitespace(raw)
-    raw_lengths, lengths = _lengths(raw), _lengths(trimmed)
+    raw_lengths = _lengths(raw)
+    if padded_cells(raw) == 0:  # nothing to trim: the text as it is, no copy
+        trimmed, lengths = raw, raw_lengths
+    else:
+        trimmed = pc.ascii_trim_whitespace(raw)
+        lengths = _lengths(trimmed)
     null_np = null_mask(raw)
     blank_np = (lengths == 0) & ~null_np
     # A cell longer than every token cannot be one: columns of codes or sentences

@@ -18,7 +18,12 @@ from worker.profiling.native.numbers import (
     number_summary,
 )
 from worker.profiling.native.numberset import NumberSet
-from worker.profiling.native.parse import bytes_are_ascii, parse_decimals
+from worker.profiling.native.parse import (
+    bytes_are_ascii,
+    number_leads,
+    padded_cells,
+    parse_decimals,
+)
 from worker.profiling.native.relations import RelationSums, relation_sums
 from worker.profiling.native.rowhash import partition_by_top_bits, row_hashes
 
@@ -30,7 +35,9 @@ __all__ = [
     "dictionary_encode",
     "hll_add",
     "hll_add_numbers",
+    "number_leads",
     "number_summary",
+    "padded_cells",
     "parse_decimals",
     "partition_by_top_bits",
     "relation_sums",

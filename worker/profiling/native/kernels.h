@@ -135,4 +135,12 @@ int64_t parse_decimals(const column_layout *column, int64_t rows, double *out);
 /* 1 when every byte of data is below 128 (ASCII text, hence valid UTF-8). */
 int bytes_are_ascii(const uint8_t *data, int64_t length);
 
+/* Of a text column's cells that are not null: how many start or end with ASCII
+ * whitespace (space, tab, line feed, vertical tab, form feed, carriage return). */
+int64_t padded_cells(const column_layout *c, int64_t rows);
+
+/* Of a text column's cells that are not null: how many start, after ASCII whitespace,
+ * with a digit, perhaps after a sign and then a decimal mark ('.' or ','). */
+int64_t number_leads(const column_layout *c, int64_t rows);
+
 #endif

@@ -174,6 +174,40 @@ static PyObject *text_codes_of(PyObject *self, PyObject *args) {
     return PyLong_FromLongLong(count);
 }
 
+/* One count over a text column's cells (padded_cells, number_leads). */
+static PyObject *count_cells(PyObject *args, int64_t (*pass)(const column_layout *, int64_t)) {
+    PyObject *validity_obj, *offsets_obj, *data_obj;
+    Py_ssize_t rows, validity_offset;
+    int offset_bits;
+    if (!PyArg_ParseTuple(args, "nOnOiO", &rows, &validity_obj, &validity_offset, &offsets_obj,
+                          &offset_bits, &data_obj))
+        return NULL;
+    if (offset_bits == 0) {
+        PyErr_SetString(PyExc_ValueError, "cells are counted in text");
+        return NULL;
+    }
+    held_column held;
+    if (!hold_column(&held, rows, validity_obj, validity_offset, offsets_obj, offset_bits,
+                     data_obj, 0))
+        return NULL;
+    int64_t count;
+    Py_BEGIN_ALLOW_THREADS
+    count = pass(&held.layout, rows);
+    Py_END_ALLOW_THREADS
+    release_column(&held);
+    return PyLong_FromLongLong(count);
+}
+
+static PyObject *padded_cells_of(PyObject *self, PyObject *args) {
+    (void)self;
+    return count_cells(args, padded_cells);
+}
+
+static PyObject *number_leads_of(PyObject *self, PyObject *args) {
+    (void)self;
+    return count_cells(args, number_leads);
+}
+
 static PyObject *hash_finish(PyObject *self, PyObject *args) {
     (void)self;
     PyObject *out_obj;
@@ -516,6 +550,12 @@ static PyMethodDef methods[] = {
      "sample_below(start, values, threshold, keys, kept): key each float64 value by "
      "SplitMix64 of start + its index, keep those keyed below threshold; how many."},
     {"hash_finish", hash_finish, METH_VARARGS, "hash_finish(out): end the row hashes."},
+    {"padded_cells", padded_cells_of, METH_VARARGS,
+     "padded_cells(rows, validity, validity_offset, offsets, offset_bits, data): how many "
+     "non-null text cells start or end with ASCII whitespace."},
+    {"number_leads", number_leads_of, METH_VARARGS,
+     "number_leads(rows, validity, validity_offset, offsets, offset_bits, data): how many "
+     "non-null text cells start, after whitespace, [+-]?[.,]? and a digit."},
     {"text_codes", text_codes_of, METH_VARARGS,
      "text_codes(codes, firsts, rows, validity, validity_offset, offsets, offset_bits, data): "
      "number the distinct text cells in order of first appearance into the int32 codes (-1 "

@@ -1,5 +1,6 @@
-/* Text checks: decimal numbers parsed only where the result is exact to the bit, and
- * the ASCII test of a column's bytes (bytes_are_ascii, at the end).
+/* Text checks: decimal numbers parsed only where the result is exact to the bit, the
+ * ASCII test of a column's bytes (bytes_are_ascii), and two counts over a column's
+ * cells that spare Arrow calls over every cell (padded_cells, number_leads; at the end).
  *
  * A cell is [+-]digits[.digits][(e|E)[+-]digits], with a digit on at least one side
  * of the point and nothing before or after. Its digits (at most 19 once leading zeros
@@ -159,4 +160,40 @@ int bytes_are_ascii(const uint8_t *restrict data, int64_t length) {
     uint8_t tail = 0;
     for (; i < length; i++) tail |= data[i];
     return (tail & 0x80) == 0;
+}
+
+static inline int is_space(uint8_t b) { return b == ' ' || (b >= '\t' && b <= '\r'); }
+
+static inline int cell_valid(const column_layout *c, int64_t r) {
+    if (c->validity == NULL) return 1;
+    int64_t bit = c->validity_offset + r;
+    return (c->validity[bit >> 3] >> (bit & 7)) & 1;
+}
+
+static inline int64_t cell_start(const column_layout *c, int64_t r) {
+    return c->offset_bits == 32 ? ((const int32_t *)c->offsets)[r]
+                                : ((const int64_t *)c->offsets)[r];
+}
+
+int64_t padded_cells(const column_layout *c, int64_t rows) {
+    int64_t count = 0;
+    for (int64_t r = 0; r < rows; r++) {
+        const int64_t start = cell_start(c, r), stop = cell_start(c, r + 1);
+        if (stop > start && cell_valid(c, r))
+            count += is_space(c->data[start]) | is_space(c->data[stop - 1]);
+    }
+    return count;
+}
+
+int64_t number_leads(const column_layout *c, int64_t rows) {
+    int64_t count = 0;
+    for (int64_t r = 0; r < rows; r++) {
+        if (!cell_valid(c, r)) continue;
+        const uint8_t *p = c->data + cell_start(c, r), *end = c->data + cell_start(c, r + 1);
+        while (p < end && is_space(*p)) p++;
+        if (p < end && (*p == '+' || *p == '-')) p++;
+        if (p < end && (*p == '.' || *p == ',')) p++;
+        count += p < end && *p >= '0' && *p <= '9';
+    }
+    return count;
 }
