@@ -55,7 +55,10 @@ class LabelIndex:
         mapping = np.array([self.code(label) for label in dictionary] + [-1], dtype=np.int64)
         if len(self.labels) > bound:
             return None
-        indices = encoded.indices.fill_null(len(dictionary)).to_numpy(zero_copy_only=False)
+        indices = encoded.indices
+        if indices.null_count:  # nulls take the last code of the mapping, -1
+            indices = indices.fill_null(len(dictionary))
+        indices = indices.to_numpy(zero_copy_only=False)
         return mapping[indices]
 
 

@@ -35,13 +35,16 @@ class MissingTogether:
             return
         masks = [np.asarray(missing[name]) for name in self.columns]
         self.rows += len(masks[0])
-        # Only the rows missing something add to a count: the product runs over those.
-        gapped = masks[0].copy()
-        for mask in masks[1:]:
-            gapped |= mask
+        # Only the columns and rows missing something add to a count: the product
+        # runs over those.
+        gaps = [i for i, mask in enumerate(masks) if mask.any()]
+        if not gaps:
+            return
+        gapped = masks[gaps[0]].copy()
+        for i in gaps[1:]:
+            gapped |= masks[i]
         rows = np.flatnonzero(gapped)
-        if rows.size:
-            self.both += _pair_counts([mask[rows] for mask in masks])
+        self.both[np.ix_(gaps, gaps)] += _pair_counts([masks[i][rows] for i in gaps])
 
     def merge(self, other: MissingTogether) -> MissingTogether:
         if other.columns != self.columns:

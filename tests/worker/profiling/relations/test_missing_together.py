@@ -64,3 +64,18 @@ def test_pair_counts_match_a_product_of_the_masks(columns) -> None:
     state.update({f"c{i}": masks[:, i] for i in range(columns)})
     ints = masks.astype(np.int64)
     assert (state.both == ints.T @ ints).all()
+
+
+def test_columns_without_gaps_are_left_out_of_the_product_alone() -> None:
+    # Columns 1 and 3 are never missing, and the second batch misses nothing at all:
+    # the counts must still be numpy's product of the 0/1 masks over every batch.
+    rng = np.random.default_rng(4)
+    masks = rng.random((2000, 5)) < 0.1
+    masks[:, [1, 3]] = False
+    masks[800:1200] = False
+    state = MissingTogether([f"c{i}" for i in range(5)])
+    for lo in (0, 800, 1200):
+        hi = {0: 800, 800: 1200, 1200: 2000}[lo]
+        state.update({f"c{i}": masks[lo:hi, i] for i in range(5)})
+    ints = masks.astype(np.int64)
+    assert (state.both == ints.T @ ints).all() and state.rows == 2000
