@@ -56,7 +56,8 @@ int64_t sample_below(uint64_t start, const double *values, int64_t count, double
 /* Sums of one batch for the co-moments of p numeric columns and the per-label moments.
  *
  * x[i][r] is column i's value in row r, NaN (or any non-finite value) where missing.
- * shift[i] receives the mean of column i's present values; every sum below is over
+ * shift[i] receives a center of column i: the mean of its present values in the first
+ * 2,048 rows (in all rows when fewer than 32 are present there); every sum below is over
  * z = x - shift, 0 where missing.
  * Per column i, over the rows where it is present: n[i], s[i] = sum z_i, q[i] = sum
  * z_i^2. Per ordered pair (i, j), over the rows where i is present and j missing:

@@ -2,10 +2,15 @@
  * columns, per-label moments of each numeric column, and label-pair counts.
  *
  * The batch is taken in blocks of rows small enough to stay in cache: each block's
- * values are shifted by the batch's column means (from a first pass, so sums of
- * squares stay small and the caller's merge into running moments, Chan, Golub &
- * LeVeque 1979, loses nothing to cancellation), then every figure reads the block
- * while it is there. Sums over the rows where a pair of columns is present are
+ * values are shifted by a center of each column, the mean of its present values in
+ * the first block (so sums of squares stay small and the caller's merge into running
+ * moments, Chan, Golub & LeVeque 1979, loses nothing to cancellation), then every
+ * figure reads the block while it is there. The first block's mean is as good a
+ * center as the batch's: by Cauchy-Schwarz it lies within sqrt((n - m) / m) standard
+ * deviations of the batch mean (m of the n present values in the first block; about
+ * 5 for m = 2,048 of 53,000), so the squares hold at most some 26 times the spread,
+ * where cancellation costs nothing; a column with fewer than MIN_CENTER present
+ * values there is centered on all of its values instead. Sums over the rows where a pair of columns is present are
  * each column's sums less what it holds in the rows where the other is missing:
  * delivered files miss few values, so that correction reads few rows.
  *
@@ -17,6 +22,7 @@
 #include "kernels.h"
 
 #define BLOCK 2048
+#define MIN_CENTER 32 /* present values in the first block to center a column on */
 
 /* 1 for a finite value, 0 for NaN and infinities (x - x is NaN for both). */
 static inline int finite(double v) { return v - v == 0.0; }
@@ -34,17 +40,26 @@ static double dot(const double *restrict a, const double *restrict b, int64_t n)
     return (s0 + s1) + (s2 + s3);
 }
 
+/* The mean of the present values of x[0..rows), and how many there are. */
+static double present_mean(const double *restrict x, int64_t rows, int64_t *count) {
+    double total = 0.0;
+    int64_t present = 0;
+    for (int64_t r = 0; r < rows; r++) {
+        int ok = finite(x[r]);
+        total += ok ? x[r] : 0.0;
+        present += ok;
+    }
+    *count = present;
+    return present > 0 ? total / (double)present : 0.0;
+}
+
 static void column_shifts(const relation_input *in, double *restrict shift) {
+    const int64_t head = in->rows < BLOCK ? in->rows : BLOCK;
     for (int i = 0; i < in->p; i++) {
-        const double *restrict x = in->x[i];
-        double total = 0.0;
-        int64_t present = 0;
-        for (int64_t r = 0; r < in->rows; r++) {
-            int ok = finite(x[r]);
-            total += ok ? x[r] : 0.0;
-            present += ok;
-        }
-        shift[i] = present > 0 ? total / (double)present : 0.0;
+        int64_t present;
+        shift[i] = present_mean(in->x[i], head, &present);
+        if (present < MIN_CENTER && head < in->rows)
+            shift[i] = present_mean(in->x[i], in->rows, &present);
     }
 }
 

@@ -12,7 +12,8 @@ from worker.profiling.native import _kernels
 
 @dataclass(frozen=True)
 class RelationSums:
-    """One batch's sums over values shifted by the batch's column means (``shift``).
+    """One batch's sums over values shifted by a center of each column (``shift``: the
+    mean of its present values in the first 2,048 rows, see ``relations.c``).
 
     Numeric columns i, j: ``counts[i, j]`` rows where both are present, and over
     those rows ``sums[i, j]`` = Σ zᵢ, ``squares[i, j]`` = Σ zᵢ², ``cross[i, j]`` =

@@ -4,8 +4,8 @@ For each pair (a, b) the state keeps, over the rows where both are present
 (pairwise-complete rows): n, the means of a and b, the sums of squared
 deviations M2a, M2b and the co-moment C = Σ (a - mean a)(b - mean b). A batch
 is summarised in one compiled pass (``worker.profiling.native``) on values
-shifted by the batch's column means (so the sums stay small and cancellation
-stays harmless), then merged into the running state with Chan's pairwise
+shifted by a center of each column, near its mean (so the sums stay small and
+cancellation stays harmless), then merged into the running state with Chan's pairwise
 update, which is also how two states merge. The result is exact up to floating-point rounding.
 
 References: Chan, Golub & LeVeque (1979), "Updating formulae and a pairwise

@@ -27,7 +27,13 @@ def test_pair_sums_match_numpy_over_pairwise_complete_rows(rows) -> None:
     found = relation_sums(x, codes, sizes)
     present = [np.isfinite(column) for column in x]
     for i, xi in enumerate(x):
-        assert found.shift[i] == pytest.approx(xi[present[i]].mean() if present[i].any() else 0)
+        # The center: the mean of the present values in the first 2,048 rows (the
+        # pass's first block), or of all rows when fewer than 32 are present there.
+        first = present[i][:2048]
+        centered_on_first = first.sum() >= 32 or rows <= 2048
+        values = xi[:2048][first] if centered_on_first else xi[present[i]]
+        center = values.mean() if values.size else 0.0
+        assert found.shift[i] == pytest.approx(center)
         z_i = np.where(present[i], xi - found.shift[i], 0.0)
         for j in range(len(x)):
             both = present[i] & present[j]
@@ -101,3 +107,19 @@ def test_columns_of_different_lengths_or_short_buffers_raise() -> None:
             np.zeros(0, np.int64),
             outputs[:5],
         )
+
+
+def test_spread_stays_exact_when_the_first_block_is_far_from_the_mean() -> None:
+    # A sorted column (a ramp on a large offset: its first block's mean lies far from the
+    # batch mean) and one missing throughout the first block (centered on all its values):
+    # the spread from the shifted sums must match numpy's two-pass sum of squares.
+    rows = 50_000
+    ramp = 1e9 + np.arange(rows, dtype=float)
+    late = np.full(rows, np.nan)
+    late[3000:] = 5e8 + np.random.default_rng(2).normal(0, 1, rows - 3000)
+    found = relation_sums([ramp, late], [], [])
+    assert found.shift[1] == pytest.approx(np.nanmean(late), rel=1e-12)
+    for i, column in enumerate((ramp, late)):
+        kept = column[np.isfinite(column)]
+        m2 = found.squares[i, i] - found.sums[i, i] ** 2 / found.counts[i, i]
+        assert m2 == pytest.approx(((kept - kept.mean()) ** 2).sum(), rel=1e-12)  # numpy
