@@ -208,7 +208,10 @@ class DatetimeState:
         """
         if encoded is not None:
             dictionary = encoded.dictionary
-            codes = encoded.indices.fill_null(len(dictionary)).to_numpy(zero_copy_only=False)
+            indices = encoded.indices
+            if indices.null_count:  # missing rows take the code past the dictionary
+                indices = indices.fill_null(len(dictionary))
+            codes = indices.to_numpy(zero_copy_only=False)
             for fmt, state in self.states.items():
                 parsed = parse_dates(dictionary, fmt)
                 self._keep_examples(fmt, dictionary, parsed)
