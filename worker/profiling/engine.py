@@ -261,11 +261,6 @@ class TableProfiler:
         for future in pending.values():
             future.result()
 
-    def _map(self, function: Callable[[Any], Any], items: list[Any]) -> Iterator[Any]:
-        if self.pool is None:
-            return map(function, items)
-        return self.pool.map(function, items)
-
     def follow(self, leader: TableProfiler) -> None:
         """Use the candidate parsers that ``leader``, a profiler of the first rows of the
         same table, chose; chunks profiled apart then merge column by column."""
