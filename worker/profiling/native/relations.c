@@ -10,9 +10,10 @@
  * deviations of the batch mean (m of the n present values in the first block; about
  * 5 for m = 2,048 of 53,000), so the squares hold at most some 26 times the spread,
  * where cancellation costs nothing; a column with fewer than MIN_CENTER present
- * values there is centered on all of its values instead. Sums over the rows where a pair of columns is present are
- * each column's sums less what it holds in the rows where the other is missing:
- * delivered files miss few values, so that correction reads few rows.
+ * values there is centered on all of its values instead. Sums over the rows where a
+ * pair of columns is present are each column's sums less what it holds in the rows
+ * where the other is missing: delivered files miss few values, so that correction
+ * reads few rows.
  *
  * References: Chan, Golub & LeVeque (1979), "Updating formulae and a pairwise
  * algorithm for computing sample variances"; Pébay (2008), SAND2008-6212.
