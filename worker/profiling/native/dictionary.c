@@ -16,11 +16,6 @@
 #define SEED 0x5DEECE66DULL
 #define FIRST_SLOTS 1024
 
-static inline int64_t offset_at(const column_layout *c, int64_t row) {
-    return c->offset_bits == 32 ? ((const int32_t *)c->offsets)[row]
-                                : ((const int64_t *)c->offsets)[row];
-}
-
 /* Puts code into the first free slot for hash (mask + 1 slots, -1 where free). */
 static inline void place(int32_t *slots, uint64_t mask, uint64_t hash, int32_t code) {
     uint64_t at = hash & mask;
@@ -56,14 +51,11 @@ int64_t text_codes(const column_layout *c, int64_t rows, int32_t *codes, int64_t
     }
     memset(slots, 0xFF, sizeof(int32_t) * (mask + 1));
     for (int64_t r = 0; r < rows; r++) {
-        if (c->validity != NULL) {
-            int64_t bit = c->validity_offset + r;
-            if (!((c->validity[bit >> 3] >> (bit & 7)) & 1)) {
-                codes[r] = -1;
-                continue;
-            }
+        if (!cell_valid(c, r)) {
+            codes[r] = -1;
+            continue;
         }
-        const int64_t start = offset_at(c, r), n = offset_at(c, r + 1) - start;
+        const int64_t start = cell_start(c, r), n = cell_start(c, r + 1) - start;
         const uint8_t *p = c->data + start;
         uint64_t w0 = 0, w1 = 0, hash;
         if (n <= 16) {
@@ -78,8 +70,8 @@ int64_t text_codes(const column_layout *c, int64_t rows, int32_t *codes, int64_t
             code = slots[at];
             if (code < 0) break;
             if (hashes[code] == hash) {
-                const int64_t first = offset_at(c, firsts[code]);
-                if (offset_at(c, firsts[code] + 1) - first == n) {
+                const int64_t first = cell_start(c, firsts[code]);
+                if (cell_start(c, firsts[code] + 1) - first == n) {
                     if (n > 16) {
                         if (memcmp(c->data + first, p, (size_t)n) == 0) break;
                     } else {

@@ -6,6 +6,7 @@
 #ifndef TIDEWAITER_KERNELS_H
 #define TIDEWAITER_KERNELS_H
 
+#include <stddef.h>
 #include <stdint.h>
 
 /* On x86-64 with GCC, a second build of a pass for AVX2, chosen at load time where
@@ -30,6 +31,19 @@ typedef struct {
     int64_t data_length;
     int64_t width;
 } column_layout;
+
+/* 1 when row's cell is not null (every cell is when there is no bitmap). */
+static inline int cell_valid(const column_layout *c, int64_t row) {
+    if (c->validity == NULL) return 1;
+    int64_t bit = c->validity_offset + row;
+    return (c->validity[bit >> 3] >> (bit & 7)) & 1;
+}
+
+/* Where row's cell starts in a text column's data (row + 1: where it ends). */
+static inline int64_t cell_start(const column_layout *c, int64_t row) {
+    return c->offset_bits == 32 ? ((const int32_t *)c->offsets)[row]
+                                : ((const int64_t *)c->offsets)[row];
+}
 
 /* Mixes one column's cells into the running row hashes h[0..rows). */
 void row_hash_column(uint64_t *h, int64_t rows, const column_layout *column, uint64_t seed);

@@ -164,17 +164,6 @@ int bytes_are_ascii(const uint8_t *restrict data, int64_t length) {
 
 static inline int is_space(uint8_t b) { return b == ' ' || (b >= '\t' && b <= '\r'); }
 
-static inline int cell_valid(const column_layout *c, int64_t r) {
-    if (c->validity == NULL) return 1;
-    int64_t bit = c->validity_offset + r;
-    return (c->validity[bit >> 3] >> (bit & 7)) & 1;
-}
-
-static inline int64_t cell_start(const column_layout *c, int64_t r) {
-    return c->offset_bits == 32 ? ((const int32_t *)c->offsets)[r]
-                                : ((const int64_t *)c->offsets)[r];
-}
-
 int64_t padded_cells(const column_layout *c, int64_t rows) {
     int64_t count = 0;
     for (int64_t r = 0; r < rows; r++) {

@@ -16,12 +16,6 @@
 #include "hashing.h"
 #include "kernels.h"
 
-static inline int is_valid(const column_layout *c, int64_t row) {
-    if (c->validity == NULL) return 1;
-    int64_t bit = c->validity_offset + row;
-    return (c->validity[bit >> 3] >> (bit & 7)) & 1;
-}
-
 /* A null cell: the word of all ones (top byte 0xFF, which no cell's first word has). */
 static inline uint64_t mix_null(uint64_t h, uint64_t seed) { return round_word(h, ~seed); }
 
@@ -30,18 +24,18 @@ void row_hash_column(uint64_t *h, int64_t rows, const column_layout *c, uint64_t
     if (c->offset_bits == 32) {
         const int32_t *offsets = (const int32_t *)c->offsets;
         for (int64_t r = 0; r < rows; r++)
-            h[r] = is_valid(c, r) ? mix_cell(h[r], c->data + offsets[r],
+            h[r] = cell_valid(c, r) ? mix_cell(h[r], c->data + offsets[r],
                                              offsets[r + 1] - offsets[r], end, seed)
                                   : mix_null(h[r], seed);
     } else if (c->offset_bits == 64) {
         const int64_t *offsets = (const int64_t *)c->offsets;
         for (int64_t r = 0; r < rows; r++)
-            h[r] = is_valid(c, r) ? mix_cell(h[r], c->data + offsets[r],
+            h[r] = cell_valid(c, r) ? mix_cell(h[r], c->data + offsets[r],
                                              offsets[r + 1] - offsets[r], end, seed)
                                   : mix_null(h[r], seed);
     } else {
         for (int64_t r = 0; r < rows; r++)
-            h[r] = is_valid(c, r) ? mix_cell(h[r], c->data + r * c->width, c->width, end, seed)
+            h[r] = cell_valid(c, r) ? mix_cell(h[r], c->data + r * c->width, c->width, end, seed)
                                   : mix_null(h[r], seed);
     }
 }
